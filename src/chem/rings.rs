@@ -1,0 +1,216 @@
+//! Ring perception: which bonds lie on a cycle, the cyclomatic number, and the set of shortest
+//! cycles through each ring bond (used by aromaticity perception).
+//!
+//! - Ring bonds: a bond is on a cycle iff it is not a bridge; bridges by Tarjan's low-link
+//!   depth-first search (Tarjan, SIAM J. Comput. 1, 146 (1972)), iterative, O(V + E).
+//! - Ring count: the cyclomatic number E − V + C (the size of any minimum cycle basis, hence
+//!   equal to the size of the SSSR; Downs et al., J. Chem. Inf. Comput. Sci. 29, 172 (1989)).
+//! - Shortest cycles: for every ring bond (u, v), all shortest u–v paths avoiding that bond
+//!   (breadth-first search), closed into cycles and deduplicated. The resulting set does not depend
+//!   on atom numbering (unlike a single SSSR pick), which keeps aromaticity, and thus canonical
+//!   SMILES, independent of input order. A cap on cycles per bond bounds pathological cages.
+
+use petgraph::visit::EdgeRef;
+
+use super::mol::Molecule;
+
+/// Compact adjacency (CSR): `offs[v]..offs[v + 1]` indexes `(neighbour, edge)` pairs of atom `v`.
+pub(crate) fn csr(mol: &Molecule) -> (Vec<usize>, Vec<(usize, usize)>) {
+    let n = mol.atom_count();
+    let mut offs = Vec::with_capacity(n + 1);
+    let mut adj = Vec::with_capacity(2 * mol.bond_count());
+    for v in 0..n {
+        offs.push(adj.len());
+        for e in mol.graph.edges(petgraph::graph::NodeIndex::new(v)) {
+            let o = if e.source().index() == v {
+                e.target().index()
+            } else {
+                e.source().index()
+            };
+            adj.push((o, e.id().index()));
+        }
+    }
+    offs.push(adj.len());
+    (offs, adj)
+}
+
+/// `true` for each bond (by edge index) that lies on a cycle.
+pub fn ring_bonds(mol: &Molecule) -> Vec<bool> {
+    let n = mol.atom_count();
+    let m = mol.bond_count();
+    let mut in_ring = vec![true; m];
+    if m == 0 {
+        return in_ring;
+    }
+    let (offs, adj) = csr(mol);
+    let mut disc = vec![u32::MAX; n];
+    let mut low = vec![0u32; n];
+    let mut time = 0u32;
+    // Stack frames: (atom, edge to parent, next adjacency position).
+    let mut stack: Vec<(usize, usize, usize)> = Vec::with_capacity(n);
+    for root in 0..n {
+        if disc[root] != u32::MAX {
+            continue;
+        }
+        disc[root] = time;
+        low[root] = time;
+        time += 1;
+        stack.push((root, usize::MAX, offs[root]));
+        while let Some(top) = stack.last_mut() {
+            let (v, pe) = (top.0, top.1);
+            if top.2 < offs[v + 1] {
+                let (w, e) = adj[top.2];
+                top.2 += 1;
+                if e == pe {
+                    continue;
+                }
+                if disc[w] == u32::MAX {
+                    disc[w] = time;
+                    low[w] = time;
+                    time += 1;
+                    stack.push((w, e, offs[w]));
+                } else {
+                    low[v] = low[v].min(disc[w]);
+                }
+            } else {
+                stack.pop();
+                if let Some(parent) = stack.last() {
+                    let p = parent.0;
+                    low[p] = low[p].min(low[v]);
+                    if low[v] > disc[p] {
+                        in_ring[pe] = false;
+                    }
+                }
+            }
+        }
+    }
+    in_ring
+}
+
+/// `true` for each atom that lies on a cycle, from [`ring_bonds`].
+pub fn ring_atoms(mol: &Molecule, ring_bond: &[bool]) -> Vec<bool> {
+    let mut r = vec![false; mol.atom_count()];
+    for e in mol.graph.edge_indices() {
+        if ring_bond[e.index()] {
+            let (a, b) = mol.graph.edge_endpoints(e).expect("edge exists");
+            r[a.index()] = true;
+            r[b.index()] = true;
+        }
+    }
+    r
+}
+
+/// Cyclomatic number E − V + C: the number of rings in the smallest set of smallest rings.
+pub fn ring_count(mol: &Molecule) -> usize {
+    (mol.bond_count() + mol.component_count()).saturating_sub(mol.atom_count())
+}
+
+/// A cycle as its atoms in order and its bonds (sorted edge indices, for identity).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Cycle {
+    pub atoms: Vec<usize>,
+    pub bonds: Vec<usize>,
+}
+
+/// Maximum shortest cycles kept per ring bond.
+const MAX_CYCLES_PER_BOND: usize = 16;
+/// Rings larger than this are not considered (aromaticity of macrocycles is out of scope).
+pub const MAX_RING_SIZE: usize = 24;
+
+/// All shortest cycles through each ring bond of the subgraph formed by atoms with
+/// `atom_ok[a]` and bonds with `bond_ok[e]`. Deterministic and independent of atom numbering
+/// as a set; returned sorted by (size, bonds).
+pub fn shortest_cycles(mol: &Molecule, atom_ok: &[bool], bond_ok: &[bool]) -> Vec<Cycle> {
+    let n = mol.atom_count();
+    // Compact adjacency of the subgraph.
+    let mut adj: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
+    let mut edges = Vec::new();
+    for e in mol.graph.edge_indices() {
+        if !bond_ok[e.index()] {
+            continue;
+        }
+        let (a, b) = mol.graph.edge_endpoints(e).expect("edge exists");
+        let (a, b) = (a.index(), b.index());
+        if atom_ok[a] && atom_ok[b] {
+            adj[a].push((b, e.index()));
+            adj[b].push((a, e.index()));
+            edges.push((a, b, e.index()));
+        }
+    }
+    let mut out: Vec<Cycle> = Vec::new();
+    let mut dist = vec![u32::MAX; n];
+    let mut queue = Vec::with_capacity(n);
+    let mut touched = Vec::with_capacity(n);
+    for &(u, v, eid) in &edges {
+        // BFS from u without edge eid, until v's level is complete.
+        for &t in &touched {
+            dist[t] = u32::MAX;
+        }
+        touched.clear();
+        queue.clear();
+        dist[u] = 0;
+        touched.push(u);
+        queue.push(u);
+        let mut head = 0;
+        let mut found = u32::MAX;
+        while head < queue.len() {
+            let x = queue[head];
+            head += 1;
+            if dist[x] >= found || dist[x] as usize + 1 >= MAX_RING_SIZE {
+                break;
+            }
+            for &(y, e) in &adj[x] {
+                if e == eid {
+                    continue;
+                }
+                if dist[y] == u32::MAX {
+                    dist[y] = dist[x] + 1;
+                    touched.push(y);
+                    if y == v {
+                        found = dist[y];
+                    }
+                    queue.push(y);
+                }
+            }
+        }
+        if found == u32::MAX {
+            continue;
+        }
+        // Enumerate all shortest paths v → u by walking down the distance levels.
+        let mut paths: Vec<(Vec<usize>, Vec<usize>)> = vec![(vec![v], vec![eid])];
+        for _ in 0..found {
+            let mut next = Vec::new();
+            for (atoms, bonds) in &paths {
+                let x = *atoms.last().expect("non-empty path");
+                for &(y, e) in &adj[x] {
+                    if e != eid && dist[y] != u32::MAX && dist[y] + 1 == dist[x] {
+                        let mut a2 = atoms.clone();
+                        a2.push(y);
+                        let mut b2 = bonds.clone();
+                        b2.push(e);
+                        next.push((a2, b2));
+                        if next.len() >= MAX_CYCLES_PER_BOND {
+                            break;
+                        }
+                    }
+                }
+                if next.len() >= MAX_CYCLES_PER_BOND {
+                    break;
+                }
+            }
+            paths = next;
+        }
+        for (atoms, mut bonds) in paths {
+            bonds.sort_unstable();
+            out.push(Cycle { atoms, bonds });
+        }
+    }
+    out.sort_by(|a, b| {
+        a.bonds
+            .len()
+            .cmp(&b.bonds.len())
+            .then(a.bonds.cmp(&b.bonds))
+    });
+    out.dedup_by(|a, b| a.bonds == b.bonds);
+    out
+}

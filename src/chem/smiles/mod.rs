@@ -1,0 +1,4 @@
+//! SMILES reading and canonical writing.
+
+pub mod parse;
+pub mod write;

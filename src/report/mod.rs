@@ -1,0 +1,3 @@
+//! Writers of tables and files for people and other programs. Only this layer writes CSV.
+
+pub mod molinfo;

@@ -1,0 +1,3 @@
+//! One integration-test binary (faster to link on CI than many).
+
+mod fixture_rdkit;
