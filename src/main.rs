@@ -6,6 +6,11 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
+/// The library allocates many small, short-lived vectors per molecule; mimalloc serves them
+/// markedly faster than the system allocator on batch runs.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 /// Screen donor–acceptor emitter candidates for TADF OLEDs.
 #[derive(Parser)]
 #[command(name = "lumisift", version, about, long_about = None)]

@@ -110,21 +110,28 @@ fn huckel(e: u32) -> bool {
 
 /// Perceive aromaticity on a Kekulé-form molecule and set the atom and bond flags.
 pub fn perceive(mol: &mut Molecule) {
+    let ring_bond = rings::ring_bonds(mol);
+    let ring_atom = rings::ring_atoms(mol, &ring_bond);
+    perceive_with(mol, &ring_bond, &ring_atom);
+}
+
+/// [`perceive`] with ring membership already known (it does not change with bond orders).
+pub fn perceive_with(mol: &mut Molecule, ring_bond: &[bool], ring_atom: &[bool]) {
     for a in mol.graph.node_weights_mut() {
         a.aromatic = false;
     }
     for b in mol.graph.edge_weights_mut() {
         b.aromatic = false;
     }
-    // Fast exit: no double bond on a ring, no lone-pair ring atom worth checking.
-    let ring_bond = rings::ring_bonds(mol);
     if !ring_bond.iter().any(|&r| r) {
         return;
     }
-    let ring_atom = rings::ring_atoms(mol, &ring_bond);
-    let contrib = contributions(mol, &ring_atom);
+    let contrib = contributions(mol, ring_atom);
+    if contrib.iter().all(|c| c.is_none()) {
+        return;
+    }
     let atom_ok: Vec<bool> = contrib.iter().map(|c| c.is_some()).collect();
-    let cycles = rings::shortest_cycles(mol, &atom_ok, &ring_bond);
+    let cycles = rings::shortest_cycles(mol, &atom_ok, ring_bond);
     if cycles.is_empty() {
         return;
     }

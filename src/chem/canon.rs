@@ -10,6 +10,9 @@
 //! Atoms in Order — An Open-Source Implementation of a Novel and Robust Molecular
 //! Canonicalization Algorithm", J. Chem. Inf. Model. 55, 2111–2120 (2015).
 //!
+//! Stereo marks do not enter the ranking (only the constitution does); the writer expresses
+//! each kept mark relative to the canonical order, so enantiomers still get distinct strings.
+//!
 //! Bonds enter as *kinds* (single, double, triple, aromatic), so the Kekulé structure chosen for
 //! an aromatic system never changes the ranking.
 //!
@@ -55,8 +58,7 @@ pub fn canonical_ranks(mol: &Molecule) -> Ranking {
                 | ((at.charge as i64 + 64) as u64 & 0x7f) << 28
                 | (at.hydrogens as u64 & 0xf) << 24
                 | (at.aromatic as u64) << 8
-                | (ring_atom[a.index()] as u64) << 4
-                | at.chirality.is_some() as u64;
+                | (ring_atom[a.index()] as u64) << 4;
             (key, at.class)
         })
         .collect();
@@ -70,88 +72,109 @@ pub fn canonical_ranks(mol: &Molecule) -> Ranking {
             i as u32
         };
     }
+    let packable = n < (1 << 13) && (0..n).all(|a| offs[a + 1] - offs[a] <= 4);
     let mut scratch = Scratch {
         keys: vec![0u64; nbr.len()],
-        order,
+        packed: vec![0u64; n],
         new_ranks: vec![0u32; n],
     };
-    refine(&mut ranks, &offs, &nbr, &mut scratch);
+    refine(&mut ranks, &mut order, &offs, &nbr, packable, &mut scratch);
     let classes = ranks.clone();
-    // Break ties.
+    // Break ties: promote the first atom of the lowest tied class, refine again.
     loop {
-        // Lowest rank shared by more than one atom.
-        let mut count = vec![0u32; n];
-        for &r in &ranks {
-            count[r as usize] += 1;
+        let tied = (1..n).find(|&i| ranks[order[i]] == ranks[order[i - 1]]);
+        let Some(i) = tied else { break };
+        // Classes are contiguous in `order`, so the first tie starts at i − 1.
+        let r = ranks[order[i]];
+        let mut k = i;
+        while k < n && ranks[order[k]] == r {
+            ranks[order[k]] = r + 1;
+            k += 1;
         }
-        let Some(tied) = (0..n).find(|&r| count[r] > 1) else {
-            break;
-        };
-        let pick = (0..n)
-            .find(|&a| ranks[a] as usize == tied)
-            .expect("a tied atom exists");
-        // Every other atom of the class moves one step behind the picked one.
-        for a in 0..n {
-            if ranks[a] as usize == tied && a != pick {
-                ranks[a] += 1;
-            }
-        }
-        refine(&mut ranks, &offs, &nbr, &mut scratch);
+        refine(&mut ranks, &mut order, &offs, &nbr, packable, &mut scratch);
     }
     Ranking { ranks, classes }
 }
 
 struct Scratch {
     keys: Vec<u64>,
-    order: Vec<usize>,
+    packed: Vec<u64>,
     new_ranks: Vec<u32>,
 }
 
-/// Refine `ranks` (each class identified by the index of its first member in sorted order)
-/// until stable.
-fn refine(ranks: &mut [u32], offs: &[usize], nbr: &[(u32, u8)], s: &mut Scratch) {
+/// Refine `ranks` until stable. `order` lists the atoms sorted by rank, and a class's rank is
+/// the position of its first member in `order`. Each round re-sorts only the classes with more
+/// than one member by their neighbours' (rank, bond kind) lists (taken from the previous round,
+/// so the result equals a full re-sort). With `packable` (all degrees ≤ 4, fewer than 8192
+/// atoms) a sorted neighbour list packs into one `u64` (13 + 3 bits per neighbour); otherwise the
+/// lists are compared as slices.
+fn refine(
+    ranks: &mut [u32],
+    order: &mut [usize],
+    offs: &[usize],
+    nbr: &[(u32, u8)],
+    packable: bool,
+    s: &mut Scratch,
+) {
     let n = ranks.len();
-    let mut classes = distinct(ranks);
     loop {
-        if classes == n {
-            return;
-        }
-        for a in 0..n {
-            let seg = &mut s.keys[offs[a]..offs[a + 1]];
-            for (k, &(b, kind)) in seg.iter_mut().zip(&nbr[offs[a]..offs[a + 1]]) {
-                *k = (ranks[b as usize] as u64) << 8 | kind as u64;
+        let mut split = false;
+        s.new_ranks.copy_from_slice(ranks);
+        let mut i = 0;
+        while i < n {
+            let r = ranks[order[i]];
+            let mut j = i + 1;
+            while j < n && ranks[order[j]] == r {
+                j += 1;
             }
-            seg.sort_unstable();
-        }
-        let keys = &s.keys;
-        let key = |a: usize| (ranks[a], &keys[offs[a]..offs[a + 1]]);
-        s.order.sort_by(|&x, &y| key(x).cmp(&key(y)));
-        let order = &s.order;
-        s.new_ranks[order[0]] = 0;
-        for i in 1..n {
-            s.new_ranks[order[i]] = if key(order[i]) == key(order[i - 1]) {
-                s.new_ranks[order[i - 1]]
-            } else {
-                i as u32
-            };
+            if j - i > 1 {
+                for &a in &order[i..j] {
+                    let seg = &mut s.keys[offs[a]..offs[a + 1]];
+                    for (k, &(b, kind)) in seg.iter_mut().zip(&nbr[offs[a]..offs[a + 1]]) {
+                        *k = (ranks[b as usize] as u64) << 3 | kind as u64;
+                    }
+                    seg.sort_unstable();
+                    if packable {
+                        let mut p = 0u64;
+                        for &k in seg.iter() {
+                            p = p << 16 | (k + 1);
+                        }
+                        s.packed[a] = p;
+                    }
+                }
+                let seg = &mut order[i..j];
+                if packable {
+                    let packed = &s.packed;
+                    seg.sort_unstable_by_key(|&a| (packed[a], a));
+                } else {
+                    let keys = &s.keys;
+                    seg.sort_unstable_by(|&x, &y| {
+                        keys[offs[x]..offs[x + 1]]
+                            .cmp(&keys[offs[y]..offs[y + 1]])
+                            .then(x.cmp(&y))
+                    });
+                }
+                let same = |x: usize, y: usize| {
+                    if packable {
+                        s.packed[x] == s.packed[y]
+                    } else {
+                        s.keys[offs[x]..offs[x + 1]] == s.keys[offs[y]..offs[y + 1]]
+                    }
+                };
+                let mut class_start = i;
+                for k in i + 1..j {
+                    if !same(order[k], order[k - 1]) {
+                        class_start = k;
+                        split = true;
+                    }
+                    s.new_ranks[order[k]] = class_start as u32;
+                }
+            }
+            i = j;
         }
         ranks.copy_from_slice(&s.new_ranks);
-        let c = distinct(ranks);
-        if c == classes {
+        if !split {
             return;
         }
-        classes = c;
     }
-}
-
-fn distinct(ranks: &[u32]) -> usize {
-    let mut seen = vec![false; ranks.len()];
-    let mut c = 0;
-    for &r in ranks {
-        if !seen[r as usize] {
-            seen[r as usize] = true;
-            c += 1;
-        }
-    }
-    c
 }

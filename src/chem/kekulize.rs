@@ -14,20 +14,19 @@ use petgraph::graph::UnGraph;
 use super::element;
 use super::error::SmilesErrorKind;
 use super::mol::{AtomIdx, BondOrder, Molecule};
-use super::rings;
 
 /// Kekulise `mol` in place. `aromatic_input[e]` says whether edge `e` was written aromatic.
 /// On failure returns the offending atom and the error kind.
 pub(crate) fn kekulize(
     mol: &mut Molecule,
     aromatic_input: &[bool],
+    ring_bond: &[bool],
+    ring_atom: &[bool],
 ) -> Result<(), (AtomIdx, SmilesErrorKind)> {
     let n = mol.atom_count();
     if !mol.graph.node_weights().any(|a| a.aromatic) {
         return Ok(());
     }
-    let ring_bond = rings::ring_bonds(mol);
-    let ring_atom = rings::ring_atoms(mol, &ring_bond);
     // Candidate bonds: written aromatic and on a ring.
     let mut cand = vec![false; mol.bond_count()];
     for e in mol.graph.edge_indices() {

@@ -1,6 +1,5 @@
 //! Molecular facts: formula, masses, counts, and the stable candidate identity.
 
-use std::collections::BTreeMap;
 use std::fmt::Write;
 
 use serde::Serialize;
@@ -15,6 +14,39 @@ use super::smiles::write::CANONICALISER_VERSION;
 /// charge (added per negative charge) in the monoisotopic mass of an ion.
 pub const ELECTRON_MASS_U: f64 = 5.485_799_090_65e-4;
 
+/// Atom counts by element (implicit hydrogens included, dummy atoms excluded), natural and
+/// labelled separately. Sums over it run in a fixed element order, so masses do not depend on
+/// atom order even in the last floating-point digit.
+struct Composition {
+    natural: [u32; 119],
+    /// (element, mass number, count), sorted.
+    labelled: Vec<(u8, u16, u32)>,
+}
+
+fn composition(mol: &Molecule) -> Composition {
+    let mut natural = [0u32; 119];
+    let mut labelled: Vec<(u8, u16, u32)> = Vec::new();
+    for atom in mol.graph.node_weights() {
+        natural[1] += atom.hydrogens as u32;
+        if atom.element == element::DUMMY {
+            continue;
+        }
+        if atom.isotope > 0 {
+            match labelled
+                .iter_mut()
+                .find(|(z, a, _)| *z == atom.element && *a == atom.isotope)
+            {
+                Some(e) => e.2 += 1,
+                None => labelled.push((atom.element, atom.isotope, 1)),
+            }
+        } else {
+            natural[atom.element as usize] += 1;
+        }
+    }
+    labelled.sort_unstable();
+    Composition { natural, labelled }
+}
+
 /// Molecular formula in Hill order: C first, then H, then the other elements alphabetically; with
 /// no carbon, all alphabetically. Isotopically labelled atoms count under their element (as
 /// common toolkits do by default). A net charge is appended as `+`, `-`, `+2`, `-2`, …
@@ -22,39 +54,32 @@ pub const ELECTRON_MASS_U: f64 = 5.485_799_090_65e-4;
 ///
 /// Reference: E. A. Hill, J. Am. Chem. Soc. 22, 478 (1900); Chemical Abstracts convention.
 pub fn formula(mol: &Molecule) -> String {
-    let mut counts: BTreeMap<&'static str, u32> = BTreeMap::new();
-    let mut h = 0u32;
-    for a in mol.atoms() {
-        let atom = mol.atom(a);
-        h += atom.hydrogens as u32;
-        match atom.element {
-            element::DUMMY => {}
-            1 => h += 1,
-            z => *counts.entry(element::symbol(z)).or_insert(0) += 1,
+    let comp = composition(mol);
+    let mut counts: Vec<(&'static str, u32)> = Vec::new();
+    for z in 1..=118u8 {
+        let n = comp.natural[z as usize]
+            + comp
+                .labelled
+                .iter()
+                .filter(|l| l.0 == z)
+                .map(|l| l.2)
+                .sum::<u32>();
+        if n > 0 {
+            counts.push((element::symbol(z), n));
         }
     }
-    if h > 0 {
-        counts.insert("H", h);
-    }
+    let has_c = counts.iter().any(|c| c.0 == "C");
+    counts.sort_by_key(|&(sym, _)| match (has_c, sym) {
+        (true, "C") => (0, sym),
+        (true, "H") => (1, sym),
+        _ => (2, sym),
+    });
     let mut out = String::new();
-    let push = |sym: &str, n: u32, out: &mut String| {
+    for (sym, n) in counts {
         out.push_str(sym);
         if n > 1 {
             let _ = write!(out, "{n}");
         }
-    };
-    let has_c = counts.contains_key("C");
-    if has_c {
-        push("C", counts["C"], &mut out);
-        if let Some(&n) = counts.get("H") {
-            push("H", n, &mut out);
-        }
-    }
-    for (sym, &n) in &counts {
-        if has_c && (*sym == "C" || *sym == "H") {
-            continue;
-        }
-        push(sym, n, &mut out);
     }
     match mol.formal_charge() {
         0 => {}
@@ -70,45 +95,32 @@ pub fn formula(mol: &Molecule) -> String {
     out
 }
 
+fn mass_of(comp: &Composition, per_element: impl Fn(u8) -> Option<f64>) -> Result<f64, ChemError> {
+    let mut m = 0.0;
+    for z in 1..=118u8 {
+        let n = comp.natural[z as usize];
+        if n > 0 {
+            let w = per_element(z)
+                .ok_or_else(|| ChemError::NoAtomicWeight(element::symbol(z).to_string()))?;
+            m += n as f64 * w;
+        }
+    }
+    for &(z, a, n) in &comp.labelled {
+        m += n as f64 * isotope_mass(z, a)?;
+    }
+    Ok(m)
+}
+
 /// Average molecular weight (g/mol) from IUPAC 2021 standard atomic weights; labelled atoms use
 /// their isotope's mass.
 pub fn average_mass(mol: &Molecule) -> Result<f64, ChemError> {
-    let h = element::standard_weight(1).expect("hydrogen is tabulated");
-    let mut m = 0.0;
-    for a in mol.atoms() {
-        let atom = mol.atom(a);
-        m += atom.hydrogens as f64 * h;
-        if atom.element == element::DUMMY {
-            continue;
-        }
-        m += if atom.isotope > 0 {
-            isotope_mass(atom.element, atom.isotope)?
-        } else {
-            element::standard_weight(atom.element)
-                .ok_or_else(|| ChemError::NoAtomicWeight(atom.symbol().to_string()))?
-        };
-    }
-    Ok(m)
+    mass_of(&composition(mol), element::standard_weight)
 }
 
 /// Monoisotopic mass (u): every atom as its most abundant isotope (labelled atoms as their
 /// isotope), less the electron masses of a net positive charge.
 pub fn monoisotopic_mass(mol: &Molecule) -> Result<f64, ChemError> {
-    let h = element::monoisotopic_mass(1).expect("hydrogen is tabulated");
-    let mut m = 0.0;
-    for a in mol.atoms() {
-        let atom = mol.atom(a);
-        m += atom.hydrogens as f64 * h;
-        if atom.element == element::DUMMY {
-            continue;
-        }
-        m += if atom.isotope > 0 {
-            isotope_mass(atom.element, atom.isotope)?
-        } else {
-            element::monoisotopic_mass(atom.element)
-                .ok_or_else(|| ChemError::NoAtomicWeight(atom.symbol().to_string()))?
-        };
-    }
+    let m = mass_of(&composition(mol), element::monoisotopic_mass)?;
     Ok(m - mol.formal_charge() as f64 * ELECTRON_MASS_U)
 }
 

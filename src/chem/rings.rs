@@ -120,89 +120,103 @@ pub const MAX_RING_SIZE: usize = 24;
 /// All shortest cycles through each ring bond of the subgraph formed by atoms with
 /// `atom_ok[a]` and bonds with `bond_ok[e]`. Deterministic and independent of atom numbering
 /// as a set; returned sorted by (size, bonds).
+///
+/// Complexity: one breadth-first search per ring bond, stopped at the bond's own cycle length,
+/// so O(E · k) for rings of size k in ordinary fused systems.
 pub fn shortest_cycles(mol: &Molecule, atom_ok: &[bool], bond_ok: &[bool]) -> Vec<Cycle> {
     let n = mol.atom_count();
-    // Compact adjacency of the subgraph.
-    let mut adj: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
-    let mut edges = Vec::new();
-    for e in mol.graph.edge_indices() {
-        if !bond_ok[e.index()] {
-            continue;
-        }
-        let (a, b) = mol.graph.edge_endpoints(e).expect("edge exists");
-        let (a, b) = (a.index(), b.index());
-        if atom_ok[a] && atom_ok[b] {
-            adj[a].push((b, e.index()));
-            adj[b].push((a, e.index()));
-            edges.push((a, b, e.index()));
-        }
-    }
+    let (offs, adj) = csr(mol);
+    let ok_edge = |x: usize, (y, e): (usize, usize)| bond_ok[e] && atom_ok[x] && atom_ok[y];
     let mut out: Vec<Cycle> = Vec::new();
     let mut dist = vec![u32::MAX; n];
-    let mut queue = Vec::with_capacity(n);
-    let mut touched = Vec::with_capacity(n);
-    for &(u, v, eid) in &edges {
-        // BFS from u without edge eid, until v's level is complete.
-        for &t in &touched {
-            dist[t] = u32::MAX;
-        }
-        touched.clear();
-        queue.clear();
-        dist[u] = 0;
-        touched.push(u);
-        queue.push(u);
-        let mut head = 0;
-        let mut found = u32::MAX;
-        while head < queue.len() {
-            let x = queue[head];
-            head += 1;
-            if dist[x] >= found || dist[x] as usize + 1 >= MAX_RING_SIZE {
-                break;
+    let mut queue: Vec<usize> = Vec::with_capacity(n);
+    let mut path_atoms: Vec<usize> = Vec::with_capacity(MAX_RING_SIZE);
+    let mut path_edges: Vec<usize> = Vec::with_capacity(MAX_RING_SIZE);
+    let mut cursor: Vec<usize> = Vec::with_capacity(MAX_RING_SIZE);
+    let mut bonds_buf: Vec<usize> = Vec::with_capacity(MAX_RING_SIZE);
+    for u in 0..n {
+        for &(v, eid) in &adj[offs[u]..offs[u + 1]] {
+            if v < u || !ok_edge(u, (v, eid)) {
+                continue;
             }
-            for &(y, e) in &adj[x] {
-                if e == eid {
-                    continue;
-                }
-                if dist[y] == u32::MAX {
-                    dist[y] = dist[x] + 1;
-                    touched.push(y);
-                    if y == v {
-                        found = dist[y];
-                    }
-                    queue.push(y);
-                }
+            // Breadth-first search from u without edge eid, until v's level is complete.
+            for &t in &queue {
+                dist[t] = u32::MAX;
             }
-        }
-        if found == u32::MAX {
-            continue;
-        }
-        // Enumerate all shortest paths v → u by walking down the distance levels.
-        let mut paths: Vec<(Vec<usize>, Vec<usize>)> = vec![(vec![v], vec![eid])];
-        for _ in 0..found {
-            let mut next = Vec::new();
-            for (atoms, bonds) in &paths {
-                let x = *atoms.last().expect("non-empty path");
-                for &(y, e) in &adj[x] {
-                    if e != eid && dist[y] != u32::MAX && dist[y] + 1 == dist[x] {
-                        let mut a2 = atoms.clone();
-                        a2.push(y);
-                        let mut b2 = bonds.clone();
-                        b2.push(e);
-                        next.push((a2, b2));
-                        if next.len() >= MAX_CYCLES_PER_BOND {
-                            break;
-                        }
-                    }
-                }
-                if next.len() >= MAX_CYCLES_PER_BOND {
+            queue.clear();
+            dist[u] = 0;
+            queue.push(u);
+            let mut head = 0;
+            // All of v's predecessors (one level up) are discovered by the time v is, so the
+            // search stops at v's discovery.
+            let mut found = u32::MAX;
+            'bfs: while head < queue.len() {
+                let x = queue[head];
+                head += 1;
+                if dist[x] as usize + 1 >= MAX_RING_SIZE {
                     break;
                 }
+                for &(y, e) in &adj[offs[x]..offs[x + 1]] {
+                    if e == eid || !ok_edge(x, (y, e)) || dist[y] != u32::MAX {
+                        continue;
+                    }
+                    dist[y] = dist[x] + 1;
+                    queue.push(y);
+                    if y == v {
+                        found = dist[y];
+                        break 'bfs;
+                    }
+                }
             }
-            paths = next;
-        }
-        for (atoms, mut bonds) in paths {
-            bonds.sort_unstable();
-            out.push(Cycle { atoms, bonds });
+            if found == u32::MAX {
+                continue;
+            }
+            // Depth-first enumeration of all shortest v → u paths down the distance levels.
+            path_atoms.clear();
+            path_edges.clear();
+            cursor.clear();
+            path_atoms.push(v);
+            cursor.push(offs[v]);
+            let mut emitted = 0;
+            while let Some(pos) = cursor.last_mut() {
+                let x = *path_atoms
+                    .last()
+                    .expect("path and cursor have equal length");
+                if dist[x] == 0 {
+                    // Reached u: a cycle.
+                    bonds_buf.clear();
+                    bonds_buf.extend_from_slice(&path_edges);
+                    bonds_buf.push(eid);
+                    bonds_buf.sort_unstable();
+                    if !out.iter().any(|c| c.bonds == bonds_buf) {
+                        out.push(Cycle {
+                            atoms: path_atoms.clone(),
+                            bonds: bonds_buf.clone(),
+                        });
+                    }
+                    emitted += 1;
+                    cursor.pop();
+                    path_atoms.pop();
+                    path_edges.pop();
+                    if emitted >= MAX_CYCLES_PER_BOND {
+                        break;
+                    }
+                    continue;
+                }
+                if *pos >= offs[x + 1] {
+                    cursor.pop();
+                    path_atoms.pop();
+                    path_edges.pop();
+                    continue;
+                }
+                let (y, e) = adj[*pos];
+                *pos += 1;
+                if e != eid && ok_edge(x, (y, e)) && dist[y] != u32::MAX && dist[y] + 1 == dist[x] {
+                    path_atoms.push(y);
+                    path_edges.push(e);
+                    cursor.push(offs[y]);
+                }
+            }
         }
     }
     out.sort_by(|a, b| {
@@ -211,6 +225,5 @@ pub fn shortest_cycles(mol: &Molecule, atom_ok: &[bool], bond_ok: &[bool]) -> Ve
             .cmp(&b.bonds.len())
             .then(a.bonds.cmp(&b.bonds))
     });
-    out.dedup_by(|a, b| a.bonds == b.bonds);
     out
 }

@@ -1,3 +1,9 @@
 //! One integration-test binary (faster to link on CI than many).
 
+mod cli;
 mod fixture_rdkit;
+mod proptests;
+
+mod aromaticity;
+mod handbook;
+mod invalid_smiles;

@@ -16,7 +16,7 @@
 use crate::chem::element;
 use crate::chem::error::{SmilesError, SmilesErrorKind as K};
 use crate::chem::mol::{Atom, AtomIdx, Bond, BondDir, BondOrder, Chirality, Molecule, StereoRef};
-use crate::chem::{aromaticity, kekulize};
+use crate::chem::{aromaticity, kekulize, rings};
 
 /// Bond as written.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -87,6 +87,8 @@ struct Parser<'a> {
     pending: Option<(RawBondKind, char, usize)>,
     branches: Vec<(usize, usize)>,
     rings: Vec<Option<RingOpen>>,
+    /// Position of a '.' not yet followed by an atom.
+    open_dot: Option<usize>,
 }
 
 impl<'a> Parser<'a> {
@@ -101,6 +103,7 @@ impl<'a> Parser<'a> {
             pending: None,
             branches: Vec::new(),
             rings: (0..100).map(|_| None).collect(),
+            open_dot: None,
         }
     }
 
@@ -170,6 +173,7 @@ impl<'a> Parser<'a> {
                         return Err(self.err(start, K::UnexpectedChar('.')));
                     }
                     self.prev = None;
+                    self.open_dot = Some(start);
                     self.i += 1;
                 }
                 b'0'..=b'9' | b'%' => self.ring_closure()?,
@@ -191,7 +195,7 @@ impl<'a> Parser<'a> {
                     if self.bytes[start..].iter().all(|b| b.is_ascii_whitespace()) {
                         self.i = self.bytes.len();
                     } else {
-                        return Err(self.err(start, K::UnexpectedChar(' ')));
+                        return Err(self.err(start, K::UnexpectedChar(c as char)));
                     }
                 }
                 _ => {
@@ -202,6 +206,9 @@ impl<'a> Parser<'a> {
         }
         if let Some((_, sym, pos)) = self.pending {
             return Err(self.err(pos, K::DanglingBond(sym)));
+        }
+        if let Some(pos) = self.open_dot {
+            return Err(self.err(pos, K::DanglingBond('.')));
         }
         if let Some((_, pos)) = self.branches.last() {
             return Err(self.err(*pos, K::UnclosedBranch));
@@ -220,6 +227,7 @@ impl<'a> Parser<'a> {
 
     fn add_atom(&mut self, mut atom: Atom, pos: usize, bracket: bool) -> Result<(), SmilesError> {
         let idx = self.atoms.len();
+        self.open_dot = None;
         let mut refs = Vec::new();
         if atom.chirality.is_some() {
             if let Some(p) = self.prev {
@@ -327,6 +335,19 @@ impl<'a> Parser<'a> {
         let start = self.i;
         let c = self.bytes[start];
         let next = self.bytes.get(start + 1).copied();
+        // A two-letter element outside the organic subset (Na, Fe, Si, Se, Cu...) needs
+        // brackets. A second letter that is an aromatic organic atom (Sc = S then c, Cn, Co,
+        // Os, Pb...) is read as two atoms, as SMILES requires.
+        if let Some(n2) = next
+            && c.is_ascii_uppercase()
+            && n2.is_ascii_lowercase()
+            && !matches!(n2, b'b' | b'c' | b'n' | b'o' | b'p' | b's')
+            && !matches!((c, n2), (b'C', b'l') | (b'B', b'r'))
+            && let Some(two) = self.src.get(start..start + 2)
+            && element::from_symbol(two).is_some()
+        {
+            return Err(self.err(start, K::NeedsBrackets(two.to_string())));
+        }
         let (z, aromatic, len) = match (c, next) {
             (b'C', Some(b'l')) => (17, false, 2),
             (b'B', Some(b'r')) => (35, false, 2),
@@ -402,6 +423,21 @@ impl<'a> Parser<'a> {
         } else if body[j].is_ascii_lowercase() {
             let two = std::str::from_utf8(&body[j..(j + 2).min(body.len())]).unwrap_or("");
             let arom2 = ["se", "as", "te", "si", "ge"];
+            // A lowercase two-letter element that cannot be aromatic ([cl], [br], [na], [he]);
+            // a second letter that could start something else is left to the checks below.
+            let cap2 = {
+                let mut t = two.to_string();
+                let first = t.len().min(1);
+                t[..first].make_ascii_uppercase();
+                t
+            };
+            if two.len() == 2
+                && two.as_bytes()[1].is_ascii_lowercase()
+                && !arom2.contains(&two)
+                && element::from_symbol(&cap2).is_some()
+            {
+                return Err(self.err(at(sym_start), K::NotAromaticElement(two.to_string())));
+            }
             if two.len() == 2 && arom2.contains(&two) {
                 j += 2;
                 let mut s = two.to_string();
@@ -454,7 +490,7 @@ impl<'a> Parser<'a> {
                 at(j),
                 K::BadBracket(format!(
                     "expected an element symbol, found '{}'",
-                    body[j] as char
+                    char_at(self.src, at(j))
                 )),
             ));
         };
@@ -549,7 +585,7 @@ impl<'a> Parser<'a> {
             atom.class = class as u32;
         }
         if j != body.len() {
-            let ch = body[j] as char;
+            let ch = char_at(self.src, at(j));
             return Err(self.err(
                 at(j),
                 K::BadBracket(format!("unexpected '{ch}' inside brackets")),
@@ -619,7 +655,10 @@ impl<'a> Parser<'a> {
                     && ha.atom.hydrogens == 0
                     && ha.atom.chirality.is_none()
                     && degree[h] == 1
-                    && matches!(b.kind, RawBondKind::Single | RawBondKind::Implicit)
+                    && !matches!(
+                        b.kind,
+                        RawBondKind::Double | RawBondKind::Triple | RawBondKind::Quadruple
+                    )
                     && self.atoms[other].atom.element != 1
                 {
                     fold_into[h] = other;
@@ -693,17 +732,24 @@ impl<'a> Parser<'a> {
             mol.add_bond(AtomIdx::new(a), AtomIdx::new(bb), bond);
             aromatic_input.push(arom);
         }
-        kekulize::kekulize(&mut mol, &aromatic_input)
+        let ring_bond = rings::ring_bonds(&mol);
+        let ring_atom = rings::ring_atoms(&mol, &ring_bond);
+        kekulize::kekulize(&mut mol, &aromatic_input, &ring_bond, &ring_atom)
             .map_err(|(atom, kind)| SmilesError::new(self.col_of(positions[atom.index()]), kind))?;
         check_valences(&mol)
             .map_err(|(atom, kind)| SmilesError::new(self.col_of(positions[atom.index()]), kind))?;
-        aromaticity::perceive(&mut mol);
+        aromaticity::perceive_with(&mut mol, &ring_bond, &ring_atom);
         Ok(mol)
     }
 
     fn col_of(&self, byte_pos: usize) -> usize {
         self.col(byte_pos)
     }
+}
+
+/// The character starting at byte `b` of `s` (for messages).
+fn char_at(s: &str, b: usize) -> char {
+    s.get(b..).and_then(|t| t.chars().next()).unwrap_or('?')
 }
 
 fn bond_kind(c: u8) -> RawBondKind {
@@ -726,7 +772,8 @@ fn flip(k: RawBondKind) -> RawBondKind {
     }
 }
 
-/// Check every atom's total valence against the allowed valences of its element and charge.
+/// Check every atom's total valence against the allowed valences of its element and charge
+/// (radicals, below the lowest allowed valence, pass).
 pub(crate) fn check_valences(mol: &Molecule) -> Result<(), (AtomIdx, K)> {
     for a in mol.atoms() {
         let atom = mol.atom(a);
@@ -734,7 +781,18 @@ pub(crate) fn check_valences(mol: &Molecule) -> Result<(), (AtomIdx, K)> {
             continue;
         };
         let v = mol.valence(a);
-        if !allowed.iter().any(|&x| x as u32 == v) {
+        // Below the lowest allowed valence is a radical, which only a bracket atom can express
+        // (`[CH3]`, `[H]`); it is accepted. Between or above the allowed values is an error.
+        let radical = v < allowed[0] as u32;
+        // Valence 5 of N (nitro written N(=O)=O) needs a multiple bond; five σ bonds do not
+        // exist, although the organic-subset rule would otherwise give N(C)(C)(C)C one H.
+        let sigma_only_pentavalent_n = atom.element == 7
+            && atom.charge == 0
+            && v == 5
+            && mol
+                .neighbours(a)
+                .all(|(_, b)| mol.bond(b).order == BondOrder::Single);
+        if sigma_only_pentavalent_n || (!radical && !allowed.iter().any(|&x| x as u32 == v)) {
             return Err((
                 a,
                 K::Valence {
