@@ -7,6 +7,10 @@ use std::hint::black_box;
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use lumisift::chem::{canonical_smiles, parse_smiles, props};
 
+/// Same allocator as the shipped binary, so the figures are what `lumisift molinfo` gets.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 fn fixture_smiles() -> Vec<String> {
     let text = std::fs::read_to_string(concat!(
         env!("CARGO_MANIFEST_DIR"),

@@ -87,6 +87,32 @@ pub(crate) fn kekulize(
             adj[b].push((a, e.index()));
         }
     }
+    // A connected piece of the need-subgraph with an odd number of atoms can never be matched;
+    // naming its first atom points the user at the faulty ring (e.g. a five-membered ring of
+    // aromatic carbons) rather than at an arbitrary unmatched atom elsewhere.
+    let mut comp = vec![usize::MAX; n];
+    for s0 in 0..n {
+        if !need[s0] || comp[s0] != usize::MAX {
+            continue;
+        }
+        comp[s0] = s0;
+        let mut stack = vec![s0];
+        let mut size = 0usize;
+        let mut first = s0;
+        while let Some(x) = stack.pop() {
+            size += 1;
+            first = first.min(x);
+            for &(y, _) in &adj[x] {
+                if comp[y] == usize::MAX {
+                    comp[y] = s0;
+                    stack.push(y);
+                }
+            }
+        }
+        if size % 2 == 1 {
+            return Err((AtomIdx::new(first), SmilesErrorKind::Kekulise));
+        }
+    }
     let mut mate = vec![usize::MAX; n];
     let mut double = vec![false; mol.bond_count()];
     let mut remaining: usize = need.iter().filter(|&&x| x).count();

@@ -125,8 +125,29 @@ pub const MAX_RING_SIZE: usize = 24;
 /// so O(E · k) for rings of size k in ordinary fused systems.
 pub fn shortest_cycles(mol: &Molecule, atom_ok: &[bool], bond_ok: &[bool]) -> Vec<Cycle> {
     let n = mol.atom_count();
-    let (offs, adj) = csr(mol);
-    let ok_edge = |x: usize, (y, e): (usize, usize)| bond_ok[e] && atom_ok[x] && atom_ok[y];
+    // Adjacency of the subgraph only, so the searches below need no per-edge filtering.
+    let (offs, adj) = {
+        let mut offs = Vec::with_capacity(n + 1);
+        let mut adj = Vec::with_capacity(2 * mol.bond_count());
+        for x in 0..n {
+            offs.push(adj.len());
+            if !atom_ok[x] {
+                continue;
+            }
+            for e in mol.graph.edges(petgraph::graph::NodeIndex::new(x)) {
+                let y = if e.source().index() == x {
+                    e.target().index()
+                } else {
+                    e.source().index()
+                };
+                if bond_ok[e.id().index()] && atom_ok[y] {
+                    adj.push((y, e.id().index()));
+                }
+            }
+        }
+        offs.push(adj.len());
+        (offs, adj)
+    };
     let mut out: Vec<Cycle> = Vec::new();
     let mut dist = vec![u32::MAX; n];
     let mut queue: Vec<usize> = Vec::with_capacity(n);
@@ -134,9 +155,76 @@ pub fn shortest_cycles(mol: &Molecule, atom_ok: &[bool], bond_ok: &[bool]) -> Ve
     let mut path_edges: Vec<usize> = Vec::with_capacity(MAX_RING_SIZE);
     let mut cursor: Vec<usize> = Vec::with_capacity(MAX_RING_SIZE);
     let mut bonds_buf: Vec<usize> = Vec::with_capacity(MAX_RING_SIZE);
+    // Ring systems of the subgraph (connected pieces of its ring bonds). A system with as many
+    // bonds as atoms is one simple cycle (an isolated benzene ring, the commonest case): it is
+    // its own only cycle, taken by walking round it instead of one search per bond.
+    let mut root: Vec<usize> = (0..n).collect();
+    fn find(root: &mut [usize], mut x: usize) -> usize {
+        while root[x] != x {
+            root[x] = root[root[x]];
+            x = root[x];
+        }
+        x
+    }
     for u in 0..n {
+        for &(v, _) in &adj[offs[u]..offs[u + 1]] {
+            if v > u {
+                let (ru, rv) = (find(&mut root, u), find(&mut root, v));
+                root[ru.max(rv)] = ru.min(rv);
+            }
+        }
+    }
+    // A system is one simple cycle when every one of its atoms has exactly two ring bonds in
+    // the subgraph (an indoline's N hanging off its benzene ring does not).
+    let mut has_atoms = vec![false; n];
+    let mut not_simple = vec![false; n];
+    for u in 0..n {
+        let deg = offs[u + 1] - offs[u];
+        if deg > 0 {
+            let r = find(&mut root, u);
+            has_atoms[r] = true;
+            not_simple[r] |= deg != 2;
+        }
+    }
+    let simple = |r: usize| has_atoms[r] && !not_simple[r];
+    for u in 0..n {
+        let r = find(&mut root, u);
+        if !simple(r) || r != u {
+            continue;
+        }
+        // Walk the cycle from its lowest atom u.
+        path_atoms.clear();
+        bonds_buf.clear();
+        let (mut prev_e, mut x) = (usize::MAX, u);
+        loop {
+            path_atoms.push(x);
+            let &(y, e) = adj[offs[x]..offs[x + 1]]
+                .iter()
+                .find(|&&(_, e)| e != prev_e)
+                .expect("every atom of a simple cycle has two ring bonds");
+            bonds_buf.push(e);
+            prev_e = e;
+            x = y;
+            if x == u {
+                break;
+            }
+        }
+        if path_atoms.len() > MAX_RING_SIZE {
+            continue;
+        }
+        bonds_buf.sort_unstable();
+        out.push(Cycle {
+            atoms: path_atoms.clone(),
+            bonds: bonds_buf.clone(),
+        });
+    }
+    for u in 0..n {
+        let r = find(&mut root, u);
+        if simple(r) {
+            continue;
+        }
         for &(v, eid) in &adj[offs[u]..offs[u + 1]] {
-            if v < u || !ok_edge(u, (v, eid)) {
+            if v < u {
                 continue;
             }
             // Breadth-first search from u without edge eid, until v's level is complete.
@@ -157,7 +245,7 @@ pub fn shortest_cycles(mol: &Molecule, atom_ok: &[bool], bond_ok: &[bool]) -> Ve
                     break;
                 }
                 for &(y, e) in &adj[offs[x]..offs[x + 1]] {
-                    if e == eid || !ok_edge(x, (y, e)) || dist[y] != u32::MAX {
+                    if e == eid || dist[y] != u32::MAX {
                         continue;
                     }
                     dist[y] = dist[x] + 1;
@@ -211,7 +299,7 @@ pub fn shortest_cycles(mol: &Molecule, atom_ok: &[bool], bond_ok: &[bool]) -> Ve
                 }
                 let (y, e) = adj[*pos];
                 *pos += 1;
-                if e != eid && ok_edge(x, (y, e)) && dist[y] != u32::MAX && dist[y] + 1 == dist[x] {
+                if e != eid && dist[y] != u32::MAX && dist[y] + 1 == dist[x] {
                     path_atoms.push(y);
                     path_edges.push(e);
                     cursor.push(offs[y]);

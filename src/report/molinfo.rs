@@ -48,7 +48,7 @@ enum LineOutcome {
     Error(LineError),
 }
 
-/// Process one line: `SMILES [id]`, blank lines and `#` comments skipped.
+/// Process one line: `SMILES [id [comment…]]`; blank lines and `#` comments skipped.
 fn process_line(line_no: usize, line: &str) -> LineOutcome {
     let trimmed_start = line.len() - line.trim_start().len();
     let body = line.trim();
@@ -57,10 +57,11 @@ fn process_line(line_no: usize, line: &str) -> LineOutcome {
     }
     let mut parts = body.splitn(2, char::is_whitespace);
     let smiles = parts.next().unwrap_or("");
+    // The id is the second whitespace-separated field; anything after it is a free comment.
     let id = parts
         .next()
-        .map(|s| s.trim().to_string())
-        .filter(|s| !s.is_empty())
+        .and_then(|rest| rest.split_whitespace().next())
+        .map(str::to_string)
         .unwrap_or_else(|| line_no.to_string());
     let mol = match parse_smiles(smiles) {
         Ok(m) => m,

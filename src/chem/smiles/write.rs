@@ -44,129 +44,144 @@ pub fn write_smiles(mol: &Molecule, ranking: &Ranking) -> String {
     if n == 0 {
         return out;
     }
-    // Sorted neighbour lists (by rank).
-    let mut nbrs: Vec<Vec<(usize, usize)>> = mol
-        .atoms()
-        .map(|a| {
-            let mut v: Vec<(usize, usize)> = mol
-                .neighbours(a)
-                .map(|(b, e)| (b.index(), e.index()))
-                .collect();
-            v.sort_by_key(|&(b, _)| ranks[b]);
-            v
-        })
-        .collect();
-    // Pass 1: DFS tree, ring closures, visiting order.
+    // Neighbour lists in CSR form, each sorted by rank.
+    let mut offs = Vec::with_capacity(n + 1);
+    let mut adj: Vec<(usize, usize)> = Vec::with_capacity(2 * mol.bond_count());
+    for a in mol.atoms() {
+        offs.push(adj.len());
+        let start = adj.len();
+        adj.extend(mol.neighbours(a).map(|(b, e)| (b.index(), e.index())));
+        adj[start..].sort_unstable_by_key(|&(b, _)| ranks[b]);
+    }
+    offs.push(adj.len());
+    // Pass 1: depth-first tree; each adjacency slot becomes a tree child, a ring bond, or
+    // nothing (the way back to the parent).
+    const NONE: u8 = 0;
+    const CHILD: u8 = 1;
+    const RING: u8 = 2;
     let m = mol.bond_count();
+    let mut slot_kind = vec![NONE; adj.len()];
     let mut visited = vec![false; n];
     let mut edge_used = vec![false; m];
-    let mut parent_edge = vec![usize::MAX; n];
-    let mut children: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
-    // ring closures per atom: (partner, edge)
-    let mut ring_at: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
     let mut starts = Vec::new();
     let mut by_rank: Vec<usize> = (0..n).collect();
-    by_rank.sort_by_key(|&a| ranks[a]);
+    by_rank.sort_unstable_by_key(|&a| ranks[a]);
+    let mut stack: Vec<(usize, usize)> = Vec::with_capacity(n);
     for &root in &by_rank {
         if visited[root] {
             continue;
         }
         starts.push(root);
         visited[root] = true;
-        let mut stack: Vec<(usize, usize)> = vec![(root, 0)];
+        stack.push((root, offs[root]));
         while let Some(&mut (a, ref mut i)) = stack.last_mut() {
-            if *i >= nbrs[a].len() {
+            if *i >= offs[a + 1] {
                 stack.pop();
                 continue;
             }
-            let (b, e) = nbrs[a][*i];
+            let slot = *i;
+            let (b, e) = adj[slot];
             *i += 1;
             if edge_used[e] {
                 continue;
             }
             edge_used[e] = true;
             if visited[b] {
-                ring_at[b].push((a, e));
-                ring_at[a].push((b, e));
+                slot_kind[slot] = RING;
+                let back = (offs[b]..offs[b + 1])
+                    .find(|&k| adj[k].1 == e)
+                    .expect("both ends list the bond");
+                slot_kind[back] = RING;
             } else {
                 visited[b] = true;
-                parent_edge[b] = e;
-                children[a].push((b, e));
-                stack.push((b, 0));
+                slot_kind[slot] = CHILD;
+                stack.push((b, offs[b]));
             }
         }
     }
-    drop(std::mem::take(&mut nbrs));
     // Pass 2: write.
     let mut written = vec![false; n];
     let mut digit_of_edge = vec![0u8; m];
     let mut free_digits: Vec<bool> = vec![true; 100];
+    let mut closes: Vec<(u8, usize)> = Vec::new();
+    let mut opens: Vec<usize> = Vec::new();
+    let mut children: Vec<(usize, usize)> = Vec::new();
+    enum Step {
+        Atom(usize, Option<usize>),
+        Open,
+        Close,
+    }
+    let mut steps: Vec<Step> = Vec::with_capacity(2 * n);
     for (ci, &root) in starts.iter().enumerate() {
         if ci > 0 {
             out.push('.');
         }
-        enum Step {
-            Atom(usize, Option<usize>),
-            Open,
-            Close,
-        }
-        let mut stack = vec![Step::Atom(root, None)];
-        while let Some(step) = stack.pop() {
-            match step {
-                Step::Open => out.push('('),
-                Step::Close => out.push(')'),
-                Step::Atom(a, from) => {
-                    if let Some(e) = from {
-                        write_bond(mol, e, &mut out);
-                    }
-                    // Ring bonds at a: closures (partner written) then openings by partner rank.
-                    let mut closes: Vec<(u8, usize, usize)> = Vec::new();
-                    let mut opens: Vec<(usize, usize)> = Vec::new();
-                    for &(b, e) in &ring_at[a] {
-                        if written[b] {
-                            closes.push((digit_of_edge[e], b, e));
-                        } else {
-                            opens.push((b, e));
-                        }
-                    }
-                    closes.sort_unstable();
-                    opens.sort_by_key(|&(b, _)| ranks[b]);
-                    // Neighbour order as written, for chirality.
-                    let parent = from.map(|e| other_end(mol, e, a));
-                    let mut written_order: Vec<usize> = Vec::new();
-                    if mol.atom(AtomIdx::new(a)).chirality.is_some() {
-                        written_order.extend(parent);
-                        written_order.extend(closes.iter().map(|c| c.1));
-                        written_order.extend(opens.iter().map(|o| o.0));
-                        written_order.extend(children[a].iter().map(|c| c.0));
-                    }
-                    let chir = output_chirality(mol, ranking, a, parent, &written_order);
-                    write_atom(mol, a, chir, &mut out);
-                    written[a] = true;
-                    for (d, _, e) in closes {
-                        let _ = e;
-                        free_digits[d as usize] = true;
-                        push_digit(d, &mut out);
-                    }
-                    for (_, e) in opens {
-                        let d = (1..100).find(|&d| free_digits[d]).unwrap_or(99) as u8;
-                        free_digits[d as usize] = false;
-                        digit_of_edge[e] = d;
-                        write_bond(mol, e, &mut out);
-                        push_digit(d, &mut out);
-                    }
-                    let ch = &children[a];
-                    // Push in reverse so the lowest-ranked child is written first.
-                    for (k, &(c, e)) in ch.iter().enumerate().rev() {
-                        let last = k + 1 == ch.len();
-                        if !last {
-                            stack.push(Step::Close);
-                        }
-                        stack.push(Step::Atom(c, Some(e)));
-                        if !last {
-                            stack.push(Step::Open);
-                        }
-                    }
+        steps.push(Step::Atom(root, None));
+        while let Some(step) = steps.pop() {
+            let (a, from) = match step {
+                Step::Open => {
+                    out.push('(');
+                    continue;
+                }
+                Step::Close => {
+                    out.push(')');
+                    continue;
+                }
+                Step::Atom(a, from) => (a, from),
+            };
+            if let Some(e) = from {
+                write_bond(mol, e, &mut out);
+            }
+            // Ring bonds at a: closures (partner written) by digit, then openings by partner
+            // rank (the slots are already in rank order).
+            closes.clear();
+            opens.clear();
+            children.clear();
+            for k in offs[a]..offs[a + 1] {
+                let (b, e) = adj[k];
+                match slot_kind[k] {
+                    RING if written[b] => closes.push((digit_of_edge[e], b)),
+                    RING => opens.push(k),
+                    CHILD => children.push((b, e)),
+                    _ => {}
+                }
+            }
+            closes.sort_unstable();
+            let chir = if mol.atom(AtomIdx::new(a)).chirality.is_some() {
+                // Neighbour order as written, for the chirality mark.
+                let parent = from.map(|e| other_end(mol, e, a));
+                let mut order: Vec<usize> = Vec::with_capacity(4);
+                order.extend(parent);
+                order.extend(closes.iter().map(|c| c.1));
+                order.extend(opens.iter().map(|&k| adj[k].0));
+                order.extend(children.iter().map(|c| c.0));
+                output_chirality(mol, ranking, a, parent, &order)
+            } else {
+                None
+            };
+            write_atom(mol, a, chir, &mut out);
+            written[a] = true;
+            for &(d, _) in &closes {
+                free_digits[d as usize] = true;
+                push_digit(d, &mut out);
+            }
+            for &k in &opens {
+                let e = adj[k].1;
+                let d = (1..100).find(|&d| free_digits[d]).unwrap_or(99) as u8;
+                free_digits[d as usize] = false;
+                digit_of_edge[e] = d;
+                write_bond(mol, e, &mut out);
+                push_digit(d, &mut out);
+            }
+            // Push in reverse so the lowest-ranked child is written first.
+            for (k, &(c, e)) in children.iter().enumerate().rev() {
+                let last = k + 1 == children.len();
+                if !last {
+                    steps.push(Step::Close);
+                }
+                steps.push(Step::Atom(c, Some(e)));
+                if !last {
+                    steps.push(Step::Open);
                 }
             }
         }
