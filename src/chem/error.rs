@@ -48,6 +48,8 @@ pub enum SmilesErrorKind {
         charge: i8,
         allowed: String,
     },
+    #[error("conflicting cis/trans marks: two neighbours on the same side of a double bond")]
+    ConflictingStereo,
     #[error("aromatic atom '{0}' is not in a ring")]
     AromaticOutsideRing(String),
     #[error(

@@ -100,12 +100,14 @@ impl BondOrder {
     }
 }
 
-/// Directional mark on a single bond next to a double bond (`/` or `\` in SMILES), relative to
-/// the bond's stored direction (`from` = the lower atom index).
+/// Configuration of a double bond: neighbour `a` of the bond's first endpoint (petgraph
+/// `source`) and neighbour `b` of its second endpoint lie on opposite sides (`trans`) or on the
+/// same side. Resolved by the reader from `/` and `\` marks; written back by the canonical writer.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
-pub enum BondDir {
-    Up,
-    Down,
+pub struct DoubleBondStereo {
+    pub a: AtomIdx,
+    pub b: AtomIdx,
+    pub trans: bool,
 }
 
 /// A bond.
@@ -114,8 +116,8 @@ pub struct Bond {
     pub order: BondOrder,
     /// Set by aromaticity perception.
     pub aromatic: bool,
-    /// Cis/trans mark as written, oriented from the lower to the higher atom index.
-    pub dir: Option<BondDir>,
+    /// Cis/trans configuration of a double bond, when the input gave one.
+    pub stereo: Option<DoubleBondStereo>,
 }
 
 impl Bond {
@@ -123,7 +125,7 @@ impl Bond {
         Bond {
             order,
             aromatic: false,
-            dir: None,
+            stereo: None,
         }
     }
 

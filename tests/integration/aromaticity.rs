@@ -350,15 +350,14 @@ fn mark_on_a_non_stereocentre_is_dropped() {
     assert_eq!(canon("O[C@H]1CCCCC1"), canon("OC1CCCCC1"));
 }
 
+/// Regression (fixed in the reader/writer); what used to happen:
+///
 /// A mark on an atom that is not a stereocentre is dropped from the output, but
 /// `canon::canonical_ranks` still uses "has a chirality mark" in the initial invariant. Where the
 /// marked atom ties with another, non-equivalent atom, the mark changes the traversal: the same
 /// molecule (2,5-dimethylhexan-1-ol) gets two canonical strings and two candidate ids, and the
 /// canonical string of the marked input is not a fixed point.
 #[test]
-
-/// Regression (fixed in the reader/writer); what used to happen:
-///
 fn regression_dropped_stereo_mark_changes_canonical_smiles() {
     let marked = canon("C[C@@H](C)CCC(C)CO");
     assert_eq!(marked, canon("CC(C)CCC(C)CO"));

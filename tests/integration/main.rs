@@ -7,3 +7,4 @@ mod proptests;
 mod aromaticity;
 mod handbook;
 mod invalid_smiles;
+mod stereo;

@@ -15,7 +15,9 @@
 
 use crate::chem::element;
 use crate::chem::error::{SmilesError, SmilesErrorKind as K};
-use crate::chem::mol::{Atom, AtomIdx, Bond, BondDir, BondOrder, Chirality, Molecule, StereoRef};
+use crate::chem::mol::{
+    Atom, AtomIdx, Bond, BondOrder, Chirality, DoubleBondStereo, Molecule, StereoRef,
+};
 use crate::chem::{aromaticity, kekulize, rings};
 
 /// Bond as written.
@@ -665,6 +667,39 @@ impl<'a> Parser<'a> {
                 }
             }
         }
+        // A folded hydrogen may carry a cis/trans mark; hand it, reversed, to the other single
+        // bond of its neighbour so the configuration survives (`[H]/C(F)=C/F` is cis-FC=CF).
+        for h in 0..n {
+            let t = fold_into[h];
+            if t == usize::MAX {
+                continue;
+            }
+            let Some(hb) = self.bonds.iter().position(|b| {
+                (b.a == h || b.b == h) && matches!(b.kind, RawBondKind::Up | RawBondKind::Down)
+            }) else {
+                continue;
+            };
+            let hbond = self.bonds[hb];
+            // Symbol read H→t.
+            let up_ht = (hbond.kind == RawBondKind::Up) == (hbond.a == h);
+            let other = self.bonds.iter().position(|b| {
+                (b.a == t || b.b == t)
+                    && b.a != h
+                    && b.b != h
+                    && matches!(b.kind, RawBondKind::Single | RawBondKind::Implicit)
+            });
+            if let Some(ob) = other {
+                let o = self.bonds[ob];
+                let n_first = o.a != t; // the other atom is written before t
+                let want_up_nt = !up_ht;
+                let up = if n_first { want_up_nt } else { !want_up_nt };
+                self.bonds[ob].kind = if up {
+                    RawBondKind::Up
+                } else {
+                    RawBondKind::Down
+                };
+            }
+        }
         let mut new_index = vec![usize::MAX; n];
         let mut mol = Molecule::new();
         let mut positions = Vec::with_capacity(n);
@@ -702,6 +737,7 @@ impl<'a> Parser<'a> {
             mol.add_atom(atom);
         }
         let mut aromatic_input = Vec::with_capacity(self.bonds.len());
+        let mut marks: Vec<Option<bool>> = Vec::with_capacity(self.bonds.len());
         for b in &self.bonds {
             if fold_into[b.a] != usize::MAX || fold_into[b.b] != usize::MAX {
                 continue;
@@ -709,29 +745,23 @@ impl<'a> Parser<'a> {
             let (a, bb) = (new_index[b.a], new_index[b.b]);
             let both_arom =
                 mol.graph[AtomIdx::new(a)].aromatic && mol.graph[AtomIdx::new(bb)].aromatic;
-            let (order, dir, arom) = match b.kind {
+            let (order, mark, arom) = match b.kind {
                 RawBondKind::Single => (BondOrder::Single, None, false),
                 RawBondKind::Double => (BondOrder::Double, None, false),
                 RawBondKind::Triple => (BondOrder::Triple, None, false),
                 RawBondKind::Quadruple => (BondOrder::Quadruple, None, false),
                 RawBondKind::Aromatic => (BondOrder::Single, None, true),
                 RawBondKind::Implicit => (BondOrder::Single, None, both_arom),
-                RawBondKind::Up | RawBondKind::Down => {
-                    // Stored relative to lower→higher new index.
-                    let up = b.kind == RawBondKind::Up;
-                    let d = if (a < bb) == up {
-                        BondDir::Up
-                    } else {
-                        BondDir::Down
-                    };
-                    (BondOrder::Single, Some(d), false)
-                }
+                // `/` as read from the lower to the higher atom index (text order).
+                RawBondKind::Up => (BondOrder::Single, Some(true), false),
+                RawBondKind::Down => (BondOrder::Single, Some(false), false),
             };
-            let mut bond = Bond::new(order);
-            bond.dir = dir;
-            mol.add_bond(AtomIdx::new(a), AtomIdx::new(bb), bond);
+            mol.add_bond(AtomIdx::new(a), AtomIdx::new(bb), Bond::new(order));
             aromatic_input.push(arom);
+            marks.push(mark);
         }
+        resolve_double_bond_stereo(&mut mol, &marks, &aromatic_input)
+            .map_err(|(atom, kind)| SmilesError::new(self.col_of(positions[atom.index()]), kind))?;
         let ring_bond = rings::ring_bonds(&mol);
         let ring_atom = rings::ring_atoms(&mol, &ring_bond);
         kekulize::kekulize(&mut mol, &aromatic_input, &ring_bond, &ring_atom)
@@ -745,6 +775,62 @@ impl<'a> Parser<'a> {
     fn col_of(&self, byte_pos: usize) -> usize {
         self.col(byte_pos)
     }
+}
+
+/// Turn `/` and `\` marks into a configuration on each double bond they flank.
+///
+/// `marks[e]` is `Some(true)` for `/` read from the lower to the higher atom index of bond `e`.
+/// Each mark is normalised to read "substituent → double-bond atom" on the first end and
+/// "double-bond atom → substituent" on the second; equal symbols then mean trans (OpenSMILES
+/// 3.5.2: `F/C=C/F` is trans, `F/C=C\F` cis). A double bond with marks on one side only keeps
+/// no configuration; two marks on one side that say the same thing are a conflict.
+fn resolve_double_bond_stereo(
+    mol: &mut Molecule,
+    marks: &[Option<bool>],
+    aromatic_input: &[bool],
+) -> Result<(), (AtomIdx, K)> {
+    if marks.iter().all(|m| m.is_none()) {
+        return Ok(());
+    }
+    let edges: Vec<_> = mol.graph.edge_indices().collect();
+    for e in edges {
+        if mol.graph[e].order != BondOrder::Double || aromatic_input[e.index()] {
+            continue;
+        }
+        let (x, y) = mol.graph.edge_endpoints(e).expect("edge exists");
+        // Normalised symbol of each marked neighbour bond: for x read n→x, for y read y→n.
+        let side = |end: AtomIdx,
+                    other: AtomIdx,
+                    into_end: bool|
+         -> Result<Option<(AtomIdx, bool)>, (AtomIdx, K)> {
+            let mut found: Option<(AtomIdx, bool)> = None;
+            for (n, b) in mol.neighbours(end) {
+                if n == other {
+                    continue;
+                }
+                let Some(up) = marks[b.index()] else { continue };
+                // `up` reads lower→higher index; flip to the wanted direction.
+                let reads_n_to_end = n < end;
+                let sym = if reads_n_to_end == into_end { up } else { !up };
+                match found {
+                    None => found = Some((n, sym)),
+                    Some((_, s0)) if s0 == sym => return Err((end, K::ConflictingStereo)),
+                    Some(_) => {}
+                }
+            }
+            Ok(found)
+        };
+        let left = side(x, y, true)?;
+        let right = side(y, x, false)?;
+        if let (Some((a, sl)), Some((b, sr))) = (left, right) {
+            mol.graph[e].stereo = Some(DoubleBondStereo {
+                a,
+                b,
+                trans: sl == sr,
+            });
+        }
+    }
+    Ok(())
 }
 
 /// The character starting at byte `b` of `s` (for messages).

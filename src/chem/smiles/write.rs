@@ -9,8 +9,8 @@
 //! bracket atom. Tetrahedral marks are re-expressed for the output neighbour order; marks on atoms
 //! with two symmetry-equivalent neighbours (no true stereocentre) are dropped.
 //!
-//! Not written: cis/trans marks (`/`, `\`). They are kept on the parsed bonds but do not yet
-//! enter the canonical string, so E and Z isomers share one canonical SMILES (documented limit).
+//! Cis/trans configurations of double bonds are written as `/` and `\` marks relative to the
+//! output order (see `cis_trans_marks`).
 
 use std::fmt::Write;
 
@@ -67,12 +67,17 @@ pub fn write_smiles(mol: &Molecule, ranking: &Ranking) -> String {
     let mut by_rank: Vec<usize> = (0..n).collect();
     by_rank.sort_unstable_by_key(|&a| ranks[a]);
     let mut stack: Vec<(usize, usize)> = Vec::with_capacity(n);
+    // Position of each atom in the output (depth-first preorder = writing order).
+    let mut pos = vec![0usize; n];
+    let mut next_pos = 0;
     for &root in &by_rank {
         if visited[root] {
             continue;
         }
         starts.push(root);
         visited[root] = true;
+        pos[root] = next_pos;
+        next_pos += 1;
         stack.push((root, offs[root]));
         while let Some(&mut (a, ref mut i)) = stack.last_mut() {
             if *i >= offs[a + 1] {
@@ -94,11 +99,14 @@ pub fn write_smiles(mol: &Molecule, ranking: &Ranking) -> String {
                 slot_kind[back] = RING;
             } else {
                 visited[b] = true;
+                pos[b] = next_pos;
+                next_pos += 1;
                 slot_kind[slot] = CHILD;
                 stack.push((b, offs[b]));
             }
         }
     }
+    let marks = cis_trans_marks(mol, ranking, &pos);
     // Pass 2: write.
     let mut written = vec![false; n];
     let mut digit_of_edge = vec![0u8; m];
@@ -130,7 +138,7 @@ pub fn write_smiles(mol: &Molecule, ranking: &Ranking) -> String {
                 Step::Atom(a, from) => (a, from),
             };
             if let Some(e) = from {
-                write_bond(mol, e, &mut out);
+                write_bond(mol, e, &marks, &mut out);
             }
             // Ring bonds at a: closures (partner written) by digit, then openings by partner
             // rank (the slots are already in rank order).
@@ -170,7 +178,7 @@ pub fn write_smiles(mol: &Molecule, ranking: &Ranking) -> String {
                 let d = (1..100).find(|&d| free_digits[d]).unwrap_or(99) as u8;
                 free_digits[d as usize] = false;
                 digit_of_edge[e] = d;
-                write_bond(mol, e, &mut out);
+                write_bond(mol, e, &marks, &mut out);
                 push_digit(d, &mut out);
             }
             // Push in reverse so the lowest-ranked child is written first.
@@ -205,9 +213,13 @@ fn push_digit(d: u8, out: &mut String) {
     }
 }
 
-fn write_bond(mol: &Molecule, e: usize, out: &mut String) {
+fn write_bond(mol: &Molecule, e: usize, marks: &[Option<bool>], out: &mut String) {
     let eidx = petgraph::graph::EdgeIndex::new(e);
     let bond = mol.bond(eidx);
+    if let Some(up) = marks.get(e).copied().flatten() {
+        out.push(if up { '/' } else { '\\' });
+        return;
+    }
     if bond.aromatic {
         return;
     }
@@ -224,6 +236,111 @@ fn write_bond(mol: &Molecule, e: usize, out: &mut String) {
     }
 }
 
+/// `/` or `\` for single bonds next to configured double bonds, each read from the end written
+/// first to the end written second (`Some(true)` = `/`). Empty when the molecule has none.
+///
+/// Double bonds are taken in writing order. On each side one neighbour carries the mark: one that
+/// already has a mark from a neighbouring double bond if there is one (conjugated chains share
+/// marks), else the first written. A configuration is dropped when one end has two
+/// symmetry-equivalent neighbours or none, when the bond is on a ring, or, in a conjugated chain,
+/// when marks already placed cannot express it.
+fn cis_trans_marks(mol: &Molecule, ranking: &Ranking, pos: &[usize]) -> Vec<Option<bool>> {
+    let mut stereo: Vec<(usize, petgraph::graph::EdgeIndex)> = mol
+        .graph
+        .edge_indices()
+        .filter(|&e| mol.bond(e).stereo.is_some() && mol.bond(e).order == BondOrder::Double)
+        .map(|e| {
+            let (x, y) = mol.graph.edge_endpoints(e).expect("edge exists");
+            (pos[x.index()].min(pos[y.index()]), e)
+        })
+        .collect();
+    if stereo.is_empty() {
+        return Vec::new();
+    }
+    stereo.sort_unstable_by_key(|&(p, e)| (p, e.index()));
+    let ring_bond = crate::chem::rings::ring_bonds(mol);
+    let mut marks: Vec<Option<bool>> = vec![None; mol.bond_count()];
+    for (_, e) in stereo {
+        if ring_bond[e.index()] {
+            continue;
+        }
+        let st = mol.bond(e).stereo.expect("filtered on stereo");
+        let (src, dst) = mol.graph.edge_endpoints(e).expect("edge exists");
+        // x is written first.
+        let (x, y, a_ref, b_ref) = if pos[src.index()] < pos[dst.index()] {
+            (src, dst, st.a, st.b)
+        } else {
+            (dst, src, st.b, st.a)
+        };
+        let others = |end: AtomIdx, other: AtomIdx| -> Vec<(AtomIdx, usize)> {
+            let mut v: Vec<(AtomIdx, usize)> = mol
+                .neighbours(end)
+                .filter(|&(n, _)| n != other)
+                .map(|(n, b)| (n, b.index()))
+                .collect();
+            v.sort_unstable_by_key(|&(n, _)| pos[n.index()]);
+            v
+        };
+        let (xs, ys) = (others(x, y), others(y, x));
+        let valid = |v: &[(AtomIdx, usize)], end: AtomIdx| match v.len() {
+            1 => true,
+            2 => {
+                mol.atom(end).hydrogens == 0
+                    && ranking.classes[v[0].0.index()] != ranking.classes[v[1].0.index()]
+            }
+            _ => false,
+        };
+        if !valid(&xs, x) || !valid(&ys, y) || !xs.iter().any(|s| s.0 == a_ref) {
+            continue;
+        }
+        let pick = |v: &[(AtomIdx, usize)]| {
+            *v.iter()
+                .find(|&&(_, b)| marks[b].is_some())
+                .unwrap_or(&v[0])
+        };
+        let (rx, ex) = pick(&xs);
+        let (ry, ey) = pick(&ys);
+        // Configuration relative to the chosen references.
+        let mut trans = st.trans;
+        if rx != a_ref {
+            trans = !trans;
+        }
+        if ry != b_ref {
+            trans = !trans;
+        }
+        // Symbols read rx→x and y→ry; equal means trans.
+        let reads_forward = |from: AtomIdx, to: AtomIdx| pos[from.index()] < pos[to.index()];
+        let sym_left = match marks[ex] {
+            Some(m) => {
+                if reads_forward(rx, x) {
+                    m
+                } else {
+                    !m
+                }
+            }
+            None => true,
+        };
+        let sym_right = if trans { sym_left } else { !sym_left };
+        let mark_right = if reads_forward(y, ry) {
+            sym_right
+        } else {
+            !sym_right
+        };
+        if let Some(m) = marks[ey]
+            && m != mark_right
+        {
+            continue; // cannot be expressed with the marks already placed
+        }
+        marks[ex] = Some(if reads_forward(rx, x) {
+            sym_left
+        } else {
+            !sym_left
+        });
+        marks[ey] = Some(mark_right);
+    }
+    marks
+}
+
 /// The chirality mark to write for atom `a` given the written neighbour order, or `None` when the
 /// atom carries no mark or is not a true stereocentre.
 fn output_chirality(
@@ -237,7 +354,21 @@ fn output_chirality(
     let chir = atom.chirality?;
     let has_h = atom.hydrogens > 0;
     let slots = written_order.len() + has_h as usize;
-    if atom.stereo_refs.len() != slots || !(3..=4).contains(&slots) || atom.hydrogens > 1 {
+    if atom.stereo_refs.len() != slots || atom.hydrogens > 1 {
+        return None;
+    }
+    // A tetrahedral centre: four σ neighbours (one may be the implicit H), or three around a
+    // P, S or Se whose lone pair is the fourth (sulfoxides, phosphines).
+    let idx = AtomIdx::new(a);
+    let all_single = mol
+        .neighbours(idx)
+        .all(|(_, b)| mol.bond(b).order == BondOrder::Single && !mol.bond(b).aromatic);
+    let tetrahedral = match slots {
+        4 => all_single && !atom.aromatic,
+        3 => matches!(atom.element, 15 | 16 | 34) && !atom.aromatic,
+        _ => false,
+    };
+    if !tetrahedral {
         return None;
     }
     // Symmetry-equivalent neighbours: not a stereocentre.
