@@ -14,7 +14,7 @@
 //!    | N, P, As (neutral), C⁻, B⁻... isoelectronic | three σ bonds, no double bond | 2 (lone pair) |
 //!    | O, S, Se, Te (neutral), N⁻ | two σ bonds, no double bond | 2 (lone pair) |
 //!
-//!    Anything else (sp3 centres, S(=O)₂, an exocyclic C=C) cannot be aromatic.
+//!    Anything else (sp3 centres, S(=O)₂, an exocyclic C=C, radicals) cannot be aromatic.
 //! 2. Candidate rings are the shortest cycles through each ring bond among such atoms
 //!    ([`crate::chem::rings::shortest_cycles`], independent of atom numbering).
 //! 3. A ring whose π electrons sum to 4n+2 is aromatic. Rings that are not aromatic alone are
@@ -70,6 +70,13 @@ fn contributions(mol: &Molecule, ring_atom: &[bool]) -> Vec<Option<u8>> {
             }
         }
         if triple > 0 || double_exo_other > 0 || double_ring > 1 {
+            continue;
+        }
+        // Radicals (bracket atoms below their lowest valence) are never aromatic: their π count
+        // is not that of the table, and written lowercase they could not be read back.
+        if let Some(allowed) = super::element::allowed_valences(z, q)
+            && mol.valence(a) < allowed[0] as u32
+        {
             continue;
         }
         // Isoelectronic group: valence electrons of the neutral analogue.
