@@ -5,6 +5,7 @@ mod fixture_rdkit;
 mod proptests;
 
 mod aromaticity;
+mod fingerprints;
 mod handbook;
 mod invalid_smiles;
 mod stereo;
