@@ -1,6 +1,8 @@
 //! lumisift: screening donor–acceptor emitter candidates for TADF OLEDs.
 //!
-//! This release holds the chemistry core every later stage stands on (see `DEVELOPERS.md`).
+//! Layers (dependencies point downward): `chem` (molecule graph, SMILES, canonical form) ←
+//! `model` (shared candidate types) ← `fragments` (library files) ← `combine` (enumeration) ←
+//! `campaign` (workflow, SQLite store, runner). `report` writes tables. See `DEVELOPERS.md`.
 //!
 //! ```
 //! use lumisift::chem::{parse_smiles, facts};
@@ -11,5 +13,9 @@
 //! assert!((f.mol_weight - 268.318).abs() < 0.01);
 //! ```
 
+pub mod campaign;
 pub mod chem;
+pub mod combine;
+pub mod fragments;
+pub mod model;
 pub mod report;

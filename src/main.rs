@@ -6,6 +6,8 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
+use lumisift::campaign::{self, Progress, RunOptions, Shard, Workflow};
+
 /// The library allocates many small, short-lived vectors per molecule; mimalloc serves them
 /// markedly faster than the system allocator on batch runs.
 #[global_allocator]
@@ -28,12 +30,239 @@ enum Command {
         /// Input file, or `-` for standard input.
         file: PathBuf,
     },
+    /// Run the stages a workflow file names into its campaign store (resumable: run it again
+    /// after an interruption and it continues).
+    Run {
+        workflow: PathBuf,
+        /// Run a deterministic share K of N of the work (cluster job arrays), e.g. 3/10.
+        #[arg(long)]
+        shard: Option<String>,
+        /// Write to this store instead of the workflow's (e.g. one file per shard).
+        #[arg(long)]
+        store: Option<PathBuf>,
+        /// Worker threads (default: all cores).
+        #[arg(long)]
+        threads: Option<usize>,
+        /// Plain progress lines instead of a bar, even on a terminal.
+        #[arg(long)]
+        no_bar: bool,
+    },
+    /// Combine shard stores into one (the same rows as an unsharded run).
+    Merge {
+        out: PathBuf,
+        #[arg(required = true)]
+        shards: Vec<PathBuf>,
+    },
+    /// Write a store's candidates with provenance as CSV (and optionally a SMILES file).
+    Export {
+        store: PathBuf,
+        /// CSV output (default: stdout).
+        #[arg(long)]
+        csv: Option<PathBuf>,
+        /// Also write `SMILES<TAB>id` lines to this file.
+        #[arg(long)]
+        smi: Option<PathBuf>,
+    },
+    /// Fragment library tools.
+    Fragments {
+        #[command(subcommand)]
+        command: FragmentsCommand,
+    },
+}
+
+#[derive(Subcommand)]
+enum FragmentsCommand {
+    /// Validate fragment files (folders of *.toml or files) and print a summary table.
+    Check {
+        #[arg(required = true)]
+        paths: Vec<PathBuf>,
+    },
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Molinfo { file } => molinfo(&file),
+        Command::Run {
+            workflow,
+            shard,
+            store,
+            threads,
+            no_bar,
+        } => run(&workflow, shard.as_deref(), store, threads, no_bar),
+        Command::Merge { out, shards } => merge(&out, &shards),
+        Command::Export { store, csv, smi } => export(&store, csv, smi),
+        Command::Fragments {
+            command: FragmentsCommand::Check { paths },
+        } => fragments_check(&paths),
+    }
+}
+
+fn fail(msg: impl std::fmt::Display) -> ExitCode {
+    eprintln!("lumisift: {msg}");
+    ExitCode::from(2)
+}
+
+fn run(
+    path: &PathBuf,
+    shard: Option<&str>,
+    store: Option<PathBuf>,
+    threads: Option<usize>,
+    no_bar: bool,
+) -> ExitCode {
+    let mut wf = match Workflow::load(path) {
+        Ok(w) => w,
+        Err(e) => return fail(e),
+    };
+    if let Some(s) = store {
+        wf.store = s;
+    }
+    let shard = match shard.map(Shard::parse).transpose() {
+        Ok(s) => s,
+        Err(e) => return fail(e),
+    };
+    if let Some(n) = threads
+        && let Err(e) = rayon::ThreadPoolBuilder::new()
+            .num_threads(n)
+            .build_global()
+    {
+        return fail(format!("cannot set {n} threads: {e}"));
+    }
+    let progress = if !no_bar && std::io::stderr().is_terminal() {
+        Progress::Bar
+    } else {
+        Progress::Lines
+    };
+    match campaign::run(&wf, &RunOptions { shard, progress }) {
+        Ok(s) => {
+            let c = &s.counts;
+            eprintln!(
+                "enumerate: {} assignments considered, {} symmetry-equivalent, rejected: {} by mol weight, {} by heavy atoms, {} forbidden pairs, {} pairs not allowed; {} admitted, {} selected",
+                c.generated,
+                c.symmetry_equivalent,
+                c.rejected_mol_weight,
+                c.rejected_heavy_atoms,
+                c.rejected_forbidden_pair,
+                c.rejected_pair_not_allowed,
+                c.admitted,
+                s.selected
+            );
+            eprintln!(
+                "chunks: {} total, {} in this shard, {} already done, {} written ({} tuples) in {:.1} s",
+                s.chunks_total,
+                s.chunks_this_shard,
+                s.chunks_skipped_done,
+                s.chunks_written,
+                s.tuples_written,
+                s.elapsed_s
+            );
+            eprintln!(
+                "store {}: {} candidates from {} tuples ({} duplicates by identity)",
+                wf.store.display(),
+                s.store_candidates,
+                s.store_tuples,
+                s.store_tuples.saturating_sub(s.store_candidates)
+            );
+            ExitCode::SUCCESS
+        }
+        Err(e) => fail(e),
+    }
+}
+
+fn merge(out: &PathBuf, shards: &[PathBuf]) -> ExitCode {
+    match campaign::merge::merge(out, shards) {
+        Ok(s) => {
+            eprintln!(
+                "merged {} shard(s) into {}: {} candidates, {} tuples",
+                s.shards,
+                out.display(),
+                s.candidates,
+                s.tuples
+            );
+            for (stage, hash, present, total) in &s.incomplete {
+                eprintln!(
+                    "warning: stage {stage} (parameters {hash}): {present} of {total} chunks present — a shard is missing or unfinished"
+                );
+            }
+            if s.incomplete.is_empty() {
+                ExitCode::SUCCESS
+            } else {
+                ExitCode::from(1)
+            }
+        }
+        Err(e) => fail(e),
+    }
+}
+
+fn export(store: &PathBuf, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode {
+    let st = match campaign::store::Store::open_existing(store) {
+        Ok(s) => s,
+        Err(e) => return fail(e),
+    };
+    let conn = st.connection();
+    let result = match &csv {
+        Some(p) => std::fs::File::create(p)
+            .map_err(|e| format!("{}: {e}", p.display()))
+            .and_then(|f| {
+                lumisift::report::export::candidates_csv(conn, std::io::BufWriter::new(f))
+            }),
+        None => lumisift::report::export::candidates_csv(conn, std::io::stdout().lock()),
+    };
+    let n = match result {
+        Ok(n) => n,
+        Err(e) => return fail(e),
+    };
+    if let Some(p) = &smi {
+        let r = std::fs::File::create(p)
+            .map_err(|e| format!("{}: {e}", p.display()))
+            .and_then(|f| {
+                lumisift::report::export::candidates_smi(conn, std::io::BufWriter::new(f))
+            });
+        if let Err(e) = r {
+            return fail(e);
+        }
+    }
+    eprintln!("exported {n} candidates");
+    ExitCode::SUCCESS
+}
+
+fn fragments_check(paths: &[PathBuf]) -> ExitCode {
+    match lumisift::fragments::load_paths(paths) {
+        Ok(lib) => {
+            println!(
+                "{:<46} {:<9} {:>5} {:>6} {:>9} {:<14} {:<5}",
+                "id", "role", "sites", "heavy", "MW", "handle", "shelf"
+            );
+            for f in &lib.fragments {
+                println!(
+                    "{:<46} {:<9} {:>5} {:>6} {:>9.3} {:<14} {:<5}",
+                    f.id,
+                    f.role.as_str(),
+                    f.site_count(),
+                    f.heavy_atoms,
+                    f.mass_without_sites,
+                    f.handle.as_str(),
+                    if f.on_shelf { "yes" } else { "no" }
+                );
+            }
+            let mut by_role = std::collections::BTreeMap::new();
+            for f in &lib.fragments {
+                *by_role.entry((f.role, f.site_count())).or_insert(0usize) += 1;
+            }
+            println!();
+            println!("{} fragments, all valid:", lib.fragments.len());
+            for ((role, sites), n) in by_role {
+                println!("  {n:>4} {role} with {sites} site(s)");
+            }
+            ExitCode::SUCCESS
+        }
+        Err(errors) => {
+            for e in &errors {
+                eprintln!("{e}");
+            }
+            eprintln!("{} problem(s) found", errors.len());
+            ExitCode::from(1)
+        }
     }
 }
 

@@ -1,3 +1,4 @@
 //! Writers of tables and files for people and other programs. Only this layer writes CSV.
 
+pub mod export;
 pub mod molinfo;

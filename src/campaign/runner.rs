@@ -1,0 +1,381 @@
+//! The stage runner: enumeration into the store, chunk by chunk, resumable and shardable.
+//!
+//! The tuple stream of a workflow is deterministic. It is cut into chunks of `chunk_size`
+//! admitted tuples; chunk `c` belongs to shard `c mod N`. Each chunk is built in parallel (rayon,
+//! order-preserving collect) and handed through a bounded channel to one writer thread, which
+//! stores its rows and its done-mark in one transaction. A run that is killed (SIGINT or SIGKILL)
+//! leaves only whole chunks; running it again skips them. Memory is bounded by the chunks in
+//! flight, whatever the size of the library.
+
+use std::collections::BTreeSet;
+use std::ops::ControlFlow;
+use std::sync::mpsc::sync_channel;
+use std::time::{Duration, Instant};
+
+use rand_chacha::ChaCha20Rng;
+use rand_core::{Rng, SeedableRng};
+use rayon::prelude::*;
+use serde::Serialize;
+
+use super::error::CampaignError;
+use super::store::{Chunk, Store, TupleRow};
+use super::workflow::{EnumerateStage, Workflow};
+use crate::chem::{candidate_id, canonical_smiles, props};
+use crate::combine::{Counts, Enumerator, Tuple, TupleEvent, assemble};
+use crate::fragments::{Library, load_paths};
+
+/// `--shard K/N`: run chunk c only when c mod N == K − 1.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Shard {
+    pub k: u64,
+    pub n: u64,
+}
+
+impl Shard {
+    pub fn parse(s: &str) -> Result<Shard, String> {
+        let (k, n) = s
+            .split_once('/')
+            .ok_or_else(|| format!("shard '{s}': expected K/N, e.g. 3/10"))?;
+        let k: u64 = k
+            .trim()
+            .parse()
+            .map_err(|_| format!("shard '{s}': K is not a number"))?;
+        let n: u64 = n
+            .trim()
+            .parse()
+            .map_err(|_| format!("shard '{s}': N is not a number"))?;
+        if n == 0 || k == 0 || k > n {
+            return Err(format!("shard '{s}': need 1 <= K <= N"));
+        }
+        Ok(Shard { k, n })
+    }
+
+    fn owns(&self, chunk: u64) -> bool {
+        chunk % self.n == self.k - 1
+    }
+}
+
+impl std::fmt::Display for Shard {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}/{}", self.k, self.n)
+    }
+}
+
+/// How progress is shown.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Progress {
+    /// A progress bar with rate and ETA (on a terminal).
+    Bar,
+    /// A plain line every few seconds (logs, batch jobs).
+    Lines,
+    Quiet,
+}
+
+#[derive(Debug, Clone)]
+pub struct RunOptions {
+    pub shard: Option<Shard>,
+    pub progress: Progress,
+}
+
+/// What a run did.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct RunSummary {
+    pub counts: Counts,
+    /// Admitted tuples after sampling / the candidate cap.
+    pub selected: u64,
+    pub chunks_total: u64,
+    pub chunks_this_shard: u64,
+    pub chunks_skipped_done: u64,
+    pub chunks_written: u64,
+    pub tuples_written: u64,
+    /// Totals in the store after the run.
+    pub store_candidates: u64,
+    pub store_tuples: u64,
+    pub elapsed_s: f64,
+}
+
+/// Parameters that define the enumeration's output: a change makes a new parameter set.
+#[derive(Serialize)]
+struct ParamKey<'a> {
+    stage: &'static str,
+    enumerate: &'a EnumerateStage,
+    chunk_size: usize,
+    library: String,
+    canonicaliser: u32,
+}
+
+/// Run the stages of `wf`.
+pub fn run(wf: &Workflow, opts: &RunOptions) -> Result<RunSummary, CampaignError> {
+    let lib = load_paths(&wf.fragments).map_err(CampaignError::Fragments)?;
+    let mut summary = RunSummary::default();
+    if let Some(stage) = &wf.enumerate
+        && wf.stages.iter().any(|s| s == "enumerate")
+    {
+        summary = run_enumerate(wf, stage, &lib, opts)?;
+    }
+    Ok(summary)
+}
+
+/// Ordinals (among admitted tuples) to keep: all, the first `max`, or a seeded sample.
+enum Selection {
+    All,
+    First(u64),
+    Sample(BTreeSet<u64>),
+}
+
+impl Selection {
+    fn keeps(&self, ordinal: u64) -> bool {
+        match self {
+            Selection::All => true,
+            Selection::First(m) => ordinal < *m,
+            Selection::Sample(s) => s.contains(&ordinal),
+        }
+    }
+}
+
+/// Floyd's algorithm: `k` distinct values from `0..n`, uniformly, with a ChaCha20 stream (stable
+/// across platforms and crate versions for a given seed). Bentley & Floyd, Commun. ACM 30, 754
+/// (1987).
+fn floyd_sample(n: u64, k: u64, seed: u64) -> BTreeSet<u64> {
+    let mut rng = ChaCha20Rng::seed_from_u64(seed);
+    let mut out = BTreeSet::new();
+    let k = k.min(n);
+    for j in (n - k)..n {
+        // Uniform in 0..=j by rejection (no modulo bias).
+        let span = j + 1;
+        let zone = u64::MAX - (u64::MAX % span);
+        let t = loop {
+            let x = rng.next_u64();
+            if x < zone {
+                break x % span;
+            }
+        };
+        if !out.insert(t) {
+            out.insert(j);
+        }
+    }
+    out
+}
+
+fn run_enumerate(
+    wf: &Workflow,
+    stage: &EnumerateStage,
+    lib: &Library,
+    opts: &RunOptions,
+) -> Result<RunSummary, CampaignError> {
+    let started = Instant::now();
+    let en = Enumerator::new(lib, &stage.params).map_err(|m| CampaignError::Workflow {
+        path: wf.path.clone(),
+        message: format!("enumerate: {m}"),
+    })?;
+    let key = ParamKey {
+        stage: "enumerate",
+        enumerate: stage,
+        chunk_size: wf.chunk_size,
+        library: lib.content_hash(),
+        canonicaliser: crate::chem::CANONICALISER_VERSION,
+    };
+    let params_json = serde_json::to_string(&key).expect("parameters serialise");
+    let param_hash = blake3::hash(params_json.as_bytes()).to_hex()[..16].to_string();
+
+    // Pass 1: count (cheap, tuple level) for sampling, totals and progress.
+    let mut counts = Counts::default();
+    en.for_each(|e| {
+        counts.record(&e);
+        ControlFlow::Continue(())
+    });
+    let selection = if stage.sample > 0 {
+        Selection::Sample(floyd_sample(counts.admitted, stage.sample, stage.seed))
+    } else if stage.max_candidates > 0 {
+        Selection::First(stage.max_candidates)
+    } else {
+        Selection::All
+    };
+    let selected = match &selection {
+        Selection::All => counts.admitted,
+        Selection::First(m) => (*m).min(counts.admitted),
+        Selection::Sample(s) => s.len() as u64,
+    };
+    let chunk_size = wf.chunk_size as u64;
+    let chunks_total = selected.div_ceil(chunk_size);
+
+    let mut store = Store::open_or_create(&wf.store)?;
+    let shard_label = opts
+        .shard
+        .map(|s| s.to_string())
+        .unwrap_or_else(|| "1/1".into());
+    store.record_run(&wf.path, &wf.text, &params_json, &shard_label)?;
+    let counts_json = serde_json::to_string(&counts).expect("counts serialise");
+    store.set_stage_status("enumerate", &param_hash, chunks_total, &counts_json)?;
+    let done = store.done_chunks("enumerate", &param_hash)?;
+    let owned = |c: u64| opts.shard.is_none_or(|s| s.owns(c));
+    let chunks_this_shard = (0..chunks_total).filter(|&c| owned(c)).count() as u64;
+    let skipped = done
+        .iter()
+        .filter(|&&c| c < chunks_total && owned(c))
+        .count() as u64;
+    let todo = chunks_this_shard - skipped;
+
+    // Writer thread, fed by a bounded channel.
+    let (tx, rx) = sync_channel::<Chunk>(4);
+    let writer = std::thread::spawn(move || -> Result<(Store, u64, u64), CampaignError> {
+        let mut chunks = 0;
+        let mut rows = 0;
+        for chunk in rx {
+            store.write_chunk(&chunk)?;
+            chunks += 1;
+            rows += chunk.rows.len() as u64;
+        }
+        Ok((store, chunks, rows))
+    });
+
+    let progress = Reporter::new(opts.progress, todo);
+    let mut ordinal = 0u64; // among admitted tuples
+    let mut selected_idx = 0u64; // among selected tuples
+    let mut pending: Vec<Tuple> = Vec::with_capacity(wf.chunk_size);
+    let mut send_error = false;
+    let flush = |pending: &mut Vec<Tuple>, chunk: u64| -> bool {
+        let rows: Vec<TupleRow> = pending.par_iter().map(|t| build_row(lib, t)).collect();
+        pending.clear();
+        let ok = tx
+            .send(Chunk {
+                stage: "enumerate".into(),
+                param_hash: param_hash.clone(),
+                index: chunk,
+                rows,
+            })
+            .is_ok();
+        progress.tick();
+        ok
+    };
+    en.for_each(|e| {
+        let TupleEvent::Admitted(t) = e else {
+            return ControlFlow::Continue(());
+        };
+        let keep = selection.keeps(ordinal);
+        ordinal += 1;
+        if !keep {
+            return ControlFlow::Continue(());
+        }
+        let chunk = selected_idx / chunk_size;
+        selected_idx += 1;
+        let last_of_chunk = selected_idx.is_multiple_of(chunk_size) || selected_idx == selected;
+        if owned(chunk) && !done.contains(&chunk) {
+            pending.push(t);
+            if last_of_chunk && !flush(&mut pending, chunk) {
+                send_error = true;
+                return ControlFlow::Break(());
+            }
+        }
+        if selected_idx >= selected {
+            ControlFlow::Break(())
+        } else {
+            ControlFlow::Continue(())
+        }
+    });
+    drop(tx);
+    progress.finish();
+    let (store, chunks_written, tuples_written) = writer
+        .join()
+        .map_err(|_| CampaignError::Other("store writer thread panicked".into()))??;
+    if send_error {
+        return Err(CampaignError::Other("store writer stopped early".into()));
+    }
+    let (store_candidates, store_tuples) = store.totals()?;
+    Ok(RunSummary {
+        counts,
+        selected,
+        chunks_total,
+        chunks_this_shard,
+        chunks_skipped_done: skipped,
+        chunks_written,
+        tuples_written,
+        store_candidates,
+        store_tuples,
+        elapsed_s: started.elapsed().as_secs_f64(),
+    })
+}
+
+/// Assemble, canonicalise and describe one tuple.
+fn build_row(lib: &Library, t: &Tuple) -> TupleRow {
+    let cand = assemble(lib, t);
+    let smiles = canonical_smiles(&cand.mol);
+    let id = candidate_id(&smiles);
+    let p = &cand.provenance;
+    TupleRow {
+        tuple_key: p.tuple_key.clone(),
+        architecture: p.architecture.to_string(),
+        core: lib.fragments[t.core].id.clone(),
+        fragments: p.fragments.join(","),
+        sites: p.sites.clone(),
+        candidate_id: id,
+        formula: props::formula(&cand.mol),
+        // Every fragment was weighed when the library loaded, so all its elements are tabulated.
+        mol_weight: props::average_mass(&cand.mol).unwrap_or(f64::NAN),
+        heavy_atoms: props::heavy_atom_count(&cand.mol),
+        canonical_smiles: smiles,
+    }
+}
+
+/// Progress display owned by the driver.
+struct Reporter {
+    mode: Progress,
+    bar: Option<indicatif::ProgressBar>,
+    total: u64,
+    done: std::cell::Cell<u64>,
+    start: Instant,
+    last: std::cell::Cell<Instant>,
+}
+
+impl Reporter {
+    fn new(mode: Progress, total: u64) -> Reporter {
+        let bar = (mode == Progress::Bar).then(|| {
+            let b = indicatif::ProgressBar::new(total);
+            b.set_style(
+                indicatif::ProgressStyle::with_template(
+                    "enumerate {bar:40} {pos}/{len} chunks  {per_sec}  ETA {eta}",
+                )
+                .expect("valid template"),
+            );
+            b
+        });
+        Reporter {
+            mode,
+            bar,
+            total,
+            done: std::cell::Cell::new(0),
+            start: Instant::now(),
+            last: std::cell::Cell::new(Instant::now()),
+        }
+    }
+
+    fn tick(&self) {
+        self.done.set(self.done.get() + 1);
+        match self.mode {
+            Progress::Bar => {
+                if let Some(b) = &self.bar {
+                    b.inc(1);
+                }
+            }
+            Progress::Lines => {
+                if self.last.get().elapsed() >= Duration::from_secs(10) {
+                    self.last.set(Instant::now());
+                    let d = self.done.get();
+                    let rate = d as f64 / self.start.elapsed().as_secs_f64().max(1e-9);
+                    let eta = (self.total.saturating_sub(d)) as f64 / rate.max(1e-9);
+                    eprintln!(
+                        "enumerate: {d}/{} chunks, {rate:.1} chunks/s, ETA {eta:.0} s",
+                        self.total
+                    );
+                }
+            }
+            Progress::Quiet => {}
+        }
+    }
+
+    fn finish(&self) {
+        if let Some(b) = &self.bar {
+            b.finish_and_clear();
+        }
+    }
+}

@@ -1,0 +1,274 @@
+//! Workflow files: what a campaign enumerates (and, as stages are added, estimates and ranks).
+//!
+//! ```toml
+//! [campaign]
+//! name = "blue-search"
+//! store = "blue.sqlite"             # relative to this file
+//! fragments = ["../fragments"]      # folders of *.toml, or files
+//! stages = ["enumerate"]
+//! chunk_size = 1024                 # tuples per transaction (and resume unit)
+//!
+//! [enumerate]
+//! architectures = ["D-A", "D-B-A", "D-A-D", "A-D-A", "D-B-A-B-D", "Dn-A"]
+//! max_mol_weight = 1000.0           # g/mol; common rule of thumb for vacuum deposition
+//! max_heavy_atoms = 200
+//! forbidden_pairs = [["phenothiazin-10-yl", "4-benzoylphenyl"]]
+//! allowed_pairs = []                # when not empty, every donor–acceptor pair must be listed
+//! max_candidates = 0                # stop after this many admitted tuples (0 = no limit)
+//! sample = 0                        # keep a seeded random sample of this many (0 = all)
+//! seed = 1
+//! [enumerate.dn_a]
+//! min = 2
+//! max = 5
+//! donors = "alike"                  # alike | mixed
+//! [enumerate.donors]
+//! include = []                      # empty = all
+//! exclude = []
+//! [enumerate.acceptors]
+//! [enumerate.bridges]
+//! ```
+//!
+//! Unknown keys are rejected with the line where they stand.
+
+use std::path::{Path, PathBuf};
+
+use serde::{Deserialize, Serialize};
+
+use super::error::CampaignError;
+use crate::combine::{DnAMode, EnumerateParams, RoleFilter};
+use crate::model::Architecture;
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawWorkflow {
+    campaign: RawCampaign,
+    #[serde(default)]
+    enumerate: Option<RawEnumerate>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCampaign {
+    name: String,
+    store: PathBuf,
+    fragments: Vec<PathBuf>,
+    #[serde(default = "default_stages")]
+    stages: Vec<String>,
+    #[serde(default = "default_chunk")]
+    chunk_size: usize,
+}
+
+fn default_stages() -> Vec<String> {
+    vec!["enumerate".into()]
+}
+
+fn default_chunk() -> usize {
+    1024
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawDnA {
+    #[serde(default = "two")]
+    min: usize,
+    #[serde(default = "five")]
+    max: usize,
+    #[serde(default = "alike")]
+    donors: DnAMode,
+}
+
+fn two() -> usize {
+    2
+}
+fn five() -> usize {
+    5
+}
+fn alike() -> DnAMode {
+    DnAMode::Alike
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawEnumerate {
+    architectures: Vec<String>,
+    #[serde(default = "default_mw")]
+    max_mol_weight: f64,
+    #[serde(default = "default_heavy")]
+    max_heavy_atoms: usize,
+    #[serde(default)]
+    forbidden_pairs: Vec<(String, String)>,
+    #[serde(default)]
+    allowed_pairs: Vec<(String, String)>,
+    #[serde(default)]
+    max_candidates: u64,
+    #[serde(default)]
+    sample: u64,
+    #[serde(default = "default_seed")]
+    seed: u64,
+    #[serde(default)]
+    dn_a: Option<RawDnA>,
+    #[serde(default)]
+    donors: RoleFilter,
+    #[serde(default)]
+    acceptors: RoleFilter,
+    #[serde(default)]
+    bridges: RoleFilter,
+}
+
+fn default_mw() -> f64 {
+    1000.0
+}
+fn default_heavy() -> usize {
+    200
+}
+fn default_seed() -> u64 {
+    1
+}
+
+/// Settings of the enumeration stage, resolved.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EnumerateStage {
+    pub params: EnumerateParams,
+    pub max_candidates: u64,
+    pub sample: u64,
+    pub seed: u64,
+}
+
+/// A resolved workflow: defaults applied, paths made absolute, names checked.
+#[derive(Debug, Clone)]
+pub struct Workflow {
+    pub path: PathBuf,
+    pub text: String,
+    pub name: String,
+    pub store: PathBuf,
+    pub fragments: Vec<PathBuf>,
+    pub stages: Vec<String>,
+    pub chunk_size: usize,
+    pub enumerate: Option<EnumerateStage>,
+}
+
+/// Stages this version runs.
+pub const KNOWN_STAGES: &[&str] = &["enumerate"];
+
+impl Workflow {
+    pub fn load(path: &Path) -> Result<Workflow, CampaignError> {
+        let text = std::fs::read_to_string(path).map_err(|source| CampaignError::ReadWorkflow {
+            path: path.to_path_buf(),
+            source,
+        })?;
+        Workflow::parse(path, &text)
+    }
+
+    /// Parse workflow `text`; `path` locates relative paths and names the file in messages.
+    pub fn parse(path: &Path, text: &str) -> Result<Workflow, CampaignError> {
+        let err = |message: String| CampaignError::Workflow {
+            path: path.to_path_buf(),
+            message,
+        };
+        let raw: RawWorkflow = toml::from_str(text).map_err(|e| {
+            let loc = e
+                .span()
+                .map(|s| {
+                    let before = &text[..s.start.min(text.len())];
+                    let line = before.matches('\n').count() + 1;
+                    let col = before.len() - before.rfind('\n').map_or(0, |i| i + 1) + 1;
+                    format!("line {line}, column {col}: ")
+                })
+                .unwrap_or_default();
+            err(format!("{loc}{}", e.message().trim()))
+        })?;
+        let base = path.parent().unwrap_or(Path::new("."));
+        let resolve = |p: &Path| {
+            if p.is_absolute() {
+                p.to_path_buf()
+            } else {
+                base.join(p)
+            }
+        };
+        for s in &raw.campaign.stages {
+            if !KNOWN_STAGES.contains(&s.as_str()) {
+                return Err(err(format!(
+                    "campaign.stages: unknown stage '{s}' (known: {})",
+                    KNOWN_STAGES.join(", ")
+                )));
+            }
+        }
+        if raw.campaign.chunk_size == 0 {
+            return Err(err("campaign.chunk_size must be at least 1".into()));
+        }
+        if raw.campaign.fragments.is_empty() {
+            return Err(err(
+                "campaign.fragments: name at least one folder or file".into()
+            ));
+        }
+        let enumerate = match raw.enumerate {
+            None => {
+                if raw.campaign.stages.iter().any(|s| s == "enumerate") {
+                    return Err(err(
+                        "stage 'enumerate' is listed but there is no [enumerate] table".into(),
+                    ));
+                }
+                None
+            }
+            Some(e) => {
+                let mut archs = Vec::new();
+                for a in &e.architectures {
+                    let arch = Architecture::parse(a).ok_or_else(|| {
+                        err(format!(
+                            "enumerate.architectures: unknown architecture '{a}' (known: {})",
+                            Architecture::ALL.map(|x| x.as_str()).join(", ")
+                        ))
+                    })?;
+                    if !archs.contains(&arch) {
+                        archs.push(arch);
+                    }
+                }
+                if archs.is_empty() {
+                    return Err(err("enumerate.architectures is empty".into()));
+                }
+                if e.max_mol_weight.is_nan() || e.max_mol_weight <= 0.0 {
+                    return Err(err("enumerate.max_mol_weight must be positive".into()));
+                }
+                let dn = e.dn_a.unwrap_or(RawDnA {
+                    min: 2,
+                    max: 5,
+                    donors: DnAMode::Alike,
+                });
+                if dn.min < 2 || dn.max > 6 || dn.min > dn.max {
+                    return Err(err(format!(
+                        "enumerate.dn_a: min {} and max {} must satisfy 2 <= min <= max <= 6",
+                        dn.min, dn.max
+                    )));
+                }
+                Some(EnumerateStage {
+                    params: EnumerateParams {
+                        architectures: archs,
+                        donors: e.donors,
+                        acceptors: e.acceptors,
+                        bridges: e.bridges,
+                        max_mol_weight: e.max_mol_weight,
+                        max_heavy_atoms: e.max_heavy_atoms,
+                        forbidden_pairs: e.forbidden_pairs,
+                        allowed_pairs: e.allowed_pairs,
+                        dn_a_min: dn.min,
+                        dn_a_max: dn.max,
+                        dn_a_mode: dn.donors,
+                    },
+                    max_candidates: e.max_candidates,
+                    sample: e.sample,
+                    seed: e.seed,
+                })
+            }
+        };
+        Ok(Workflow {
+            path: path.to_path_buf(),
+            text: text.to_string(),
+            name: raw.campaign.name,
+            store: resolve(&raw.campaign.store),
+            fragments: raw.campaign.fragments.iter().map(|p| resolve(p)).collect(),
+            stages: raw.campaign.stages,
+            chunk_size: raw.campaign.chunk_size,
+            enumerate,
+        })
+    }
+}
