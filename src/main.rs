@@ -1,7 +1,7 @@
 //! The `lumisift` command line: argument parsing and printing only.
 
 use std::io::{BufReader, IsTerminal, Write};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
@@ -104,7 +104,7 @@ fn fail(msg: impl std::fmt::Display) -> ExitCode {
 }
 
 fn run(
-    path: &PathBuf,
+    path: &Path,
     shard: Option<&str>,
     store: Option<PathBuf>,
     threads: Option<usize>,
@@ -169,7 +169,7 @@ fn run(
     }
 }
 
-fn merge(out: &PathBuf, shards: &[PathBuf]) -> ExitCode {
+fn merge(out: &Path, shards: &[PathBuf]) -> ExitCode {
     match campaign::merge::merge(out, shards) {
         Ok(s) => {
             eprintln!(
@@ -194,7 +194,7 @@ fn merge(out: &PathBuf, shards: &[PathBuf]) -> ExitCode {
     }
 }
 
-fn export(store: &PathBuf, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode {
+fn export(store: &Path, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode {
     let st = match campaign::store::Store::open_existing(store) {
         Ok(s) => s,
         Err(e) => return fail(e),
@@ -266,7 +266,7 @@ fn fragments_check(paths: &[PathBuf]) -> ExitCode {
     }
 }
 
-fn molinfo(file: &PathBuf) -> ExitCode {
+fn molinfo(file: &Path) -> ExitCode {
     let name = file.display().to_string();
     let stdout = std::io::stdout();
     let out = std::io::BufWriter::new(stdout.lock());
