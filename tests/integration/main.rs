@@ -5,6 +5,8 @@ mod fixture_rdkit;
 mod proptests;
 
 mod aromaticity;
+mod campaign;
+mod combine;
 mod fingerprints;
 mod handbook;
 mod invalid_smiles;

@@ -1,0 +1,475 @@
+//! The campaign runner end to end through the real binary: resume after SIGKILL, shards and
+//! merge, export, and bad inputs (each a clear error naming file and line or key, no damage).
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::time::{Duration, Instant};
+
+use rusqlite::{Connection, OpenFlags};
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_lumisift"))
+}
+
+static COUNTER: AtomicUsize = AtomicUsize::new(0);
+
+fn temp_dir(tag: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!(
+        "lumisift-campaign-{}-{}-{}",
+        std::process::id(),
+        tag,
+        COUNTER.fetch_add(1, Ordering::SeqCst)
+    ));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn repo() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// A workflow over the shipped library, limited to a few thousand tuples, small chunks.
+fn workflow(dir: &Path, chunk: usize, extra: &str) -> PathBuf {
+    let text = format!(
+        r#"[campaign]
+name = "test"
+store = "store.sqlite"
+fragments = ["{frag}"]
+chunk_size = {chunk}
+
+[enumerate]
+architectures = ["D-A", "D-B-A", "D-A-D", "Dn-A"]
+max_mol_weight = 900.0
+{extra}
+[enumerate.donors]
+exclude = ["3-6-bis-carbazol-9-yl-carbazol-9-yl"]
+[enumerate.bridges]
+include = ["1-4-phenylene", "2-methyl-1-4-phenylene", "pyridine-2-5-diyl", "2-5-dimethyl-1-4-phenylene"]
+"#,
+        frag = repo().join("fragments").display()
+    );
+    let p = dir.join("wf.toml");
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn run(wf: &Path, args: &[&str]) -> std::process::Output {
+    let out = bin().arg("run").arg(wf).args(args).output().unwrap();
+    assert!(
+        out.status.success(),
+        "run failed: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out
+}
+
+/// All rows of the tables that define a campaign's content, sorted.
+fn content(store: &Path) -> (Vec<String>, Vec<String>, Vec<String>) {
+    let c = Connection::open_with_flags(store, OpenFlags::SQLITE_OPEN_READ_ONLY).unwrap();
+    let q = |sql: &str| -> Vec<String> {
+        let mut st = c.prepare(sql).unwrap();
+        st.query_map([], |r| r.get::<_, String>(0))
+            .unwrap()
+            .map(|x| x.unwrap())
+            .collect()
+    };
+    (
+        q(
+            "SELECT id || '|' || canonical_smiles || '|' || formula || '|' || printf('%.6f', mol_weight) || '|' || heavy_atoms FROM candidates ORDER BY id",
+        ),
+        q(
+            "SELECT tuple_key || '|' || architecture || '|' || core || '|' || fragments || '|' || sites || '|' || candidate_id FROM tuples ORDER BY tuple_key",
+        ),
+        q(
+            "SELECT stage || '|' || param_hash || '|' || chunk || '|' || n_tuples FROM stage_chunks ORDER BY stage, param_hash, chunk",
+        ),
+    )
+}
+
+fn chunks_done(store: &Path) -> i64 {
+    let Ok(c) = Connection::open_with_flags(store, OpenFlags::SQLITE_OPEN_READ_ONLY) else {
+        return 0;
+    };
+    c.query_row("SELECT count(*) FROM stage_chunks", [], |r| r.get(0))
+        .unwrap_or(0)
+}
+
+#[test]
+fn killed_run_resumes_to_the_same_rows_and_shards_merge_to_the_same_rows() {
+    // Reference: one uninterrupted run.
+    let d_ref = temp_dir("ref");
+    let wf_ref = workflow(&d_ref, 16, "");
+    run(&wf_ref, &[]);
+    let reference = content(&d_ref.join("store.sqlite"));
+    assert!(reference.0.len() > 1000, "{} candidates", reference.0.len());
+    let total_chunks = reference.2.len() as i64;
+
+    // Killed with SIGKILL part-way, then resumed.
+    let d = temp_dir("kill");
+    let wf = workflow(&d, 16, "");
+    let store = d.join("store.sqlite");
+    let mut child = bin()
+        .arg("run")
+        .arg(&wf)
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .unwrap();
+    let t0 = Instant::now();
+    while chunks_done(&store) < 3 && t0.elapsed() < Duration::from_secs(120) {
+        std::thread::sleep(Duration::from_millis(2));
+    }
+    child.kill().unwrap(); // SIGKILL on Unix
+    child.wait().unwrap();
+    let partial = chunks_done(&store);
+    assert!(partial >= 3, "the run was killed before it wrote anything");
+    assert!(
+        partial < total_chunks,
+        "the run finished ({partial} of {total_chunks} chunks) before it could be killed"
+    );
+    let out = run(&wf, &[]);
+    let log = String::from_utf8_lossy(&out.stderr);
+    assert!(log.contains("already done"), "{log}");
+    assert_eq!(content(&store), reference, "resumed run differs");
+
+    // Shards 1..3 into separate stores, merged.
+    let d_sh = temp_dir("shards");
+    let wf_sh = workflow(&d_sh, 16, "");
+    let mut shard_stores = Vec::new();
+    for k in 1..=3 {
+        let s = d_sh.join(format!("shard{k}.sqlite"));
+        run(
+            &wf_sh,
+            &["--shard", &format!("{k}/3"), "--store", s.to_str().unwrap()],
+        );
+        shard_stores.push(s);
+    }
+    let merged = d_sh.join("merged.sqlite");
+    let out = bin()
+        .arg("merge")
+        .arg(&merged)
+        .args(&shard_stores)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert_eq!(
+        content(&merged),
+        reference,
+        "merged shards differ from one run"
+    );
+
+    // A missing shard is reported, not silently accepted.
+    let partial_merge = d_sh.join("partial.sqlite");
+    let out = bin()
+        .arg("merge")
+        .arg(&partial_merge)
+        .args(&shard_stores[..2])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("chunks present"));
+}
+
+#[test]
+fn export_writes_candidates_with_sorted_provenance() {
+    let d = temp_dir("export");
+    let wf = workflow(&d, 256, "");
+    run(&wf, &[]);
+    let csv_path = d.join("out.csv");
+    let smi_path = d.join("out.smi");
+    let out = bin()
+        .arg("export")
+        .arg(d.join("store.sqlite"))
+        .arg("--csv")
+        .arg(&csv_path)
+        .arg("--smi")
+        .arg(&smi_path)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let mut rdr = csv::Reader::from_path(&csv_path).unwrap();
+    let mut n = 0;
+    let mut multi = 0;
+    let mut prev_id = String::new();
+    for r in rdr.records() {
+        let r = r.unwrap();
+        assert!(r[0] > *prev_id, "sorted by id");
+        prev_id = r[0].to_string();
+        let prov: Vec<&str> = r[7].split(';').collect();
+        assert_eq!(prov.len(), r[6].parse::<usize>().unwrap());
+        let mut sorted = prov.clone();
+        sorted.sort();
+        assert_eq!(prov, sorted, "provenance sorted");
+        if prov.len() > 1 {
+            multi += 1;
+        }
+        // The canonical SMILES reads back to itself.
+        let m = lumisift::chem::parse_smiles(&r[1]).unwrap();
+        assert_eq!(lumisift::chem::canonical_smiles(&m), &r[1]);
+        n += 1;
+    }
+    assert!(n > 1000);
+    assert!(
+        multi > 0,
+        "D-A-D and Dn-A share molecules: some candidates have two routes"
+    );
+    let smi = std::fs::read_to_string(&smi_path).unwrap();
+    assert_eq!(smi.lines().count(), n);
+}
+
+#[test]
+fn sampling_is_seeded_and_capped() {
+    let d1 = temp_dir("sample1");
+    let d2 = temp_dir("sample2");
+    let d3 = temp_dir("sample3");
+    run(&workflow(&d1, 64, "sample = 300\nseed = 7"), &[]);
+    run(&workflow(&d2, 64, "sample = 300\nseed = 7"), &[]);
+    run(&workflow(&d3, 64, "sample = 300\nseed = 8"), &[]);
+    let a = content(&d1.join("store.sqlite"));
+    let b = content(&d2.join("store.sqlite"));
+    let c = content(&d3.join("store.sqlite"));
+    assert_eq!(a.1.len(), 300);
+    assert_eq!(a, b, "same seed, same sample");
+    assert_ne!(a.1, c.1, "another seed, another sample");
+}
+
+fn expect_error(args: &[&str], needles: &[&str]) {
+    let out = bin().args(args).output().unwrap();
+    assert!(!out.status.success(), "{args:?} should fail");
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(!err.contains("panicked"), "{err}");
+    for n in needles {
+        assert!(err.contains(n), "expected '{n}' in: {err}");
+    }
+}
+
+#[test]
+fn bad_fragment_files_are_reported_with_file_line_and_reason() {
+    let d = temp_dir("badfrag");
+    let f = d.join("bad.toml");
+    std::fs::write(
+        &f,
+        r#"# line 1
+[[fragment]]
+id = "ok-donor"
+name = "diphenylamino"
+role = "donor"
+smiles = "[*:1]N(c1ccccc1)c1ccccc1"
+handle = "n-h"
+
+[[fragment]]
+id = "bridge-one-site"
+name = "phenyl"
+role = "bridge"
+smiles = "[*:1]c1ccccc1"
+handle = "aryl-halide"
+
+[[fragment]]
+id = "broken"
+name = "broken"
+role = "acceptor"
+smiles = "[*:1]c1ccccc"
+handle = "aryl-halide"
+
+[[fragment]]
+id = "gap"
+name = "gap"
+role = "acceptor"
+smiles = "[*:1]c1ccc([*:3])cc1"
+handle = "aryl-halide"
+
+[[fragment]]
+id = "double-site"
+name = "double-site"
+role = "acceptor"
+smiles = "[*:1]=C1CCCCC1"
+handle = "none"
+"#,
+    )
+    .unwrap();
+    let name = f.display().to_string();
+    expect_error(
+        &["fragments", "check", &name],
+        &[
+            &format!(
+                "{name}:9: fragment 'bridge-one-site': a bridge needs 2 attachment points, found 1"
+            ),
+            &format!("{name}:16: fragment 'broken': SMILES"),
+            "never closed",
+            &format!("{name}:23: fragment 'gap'"),
+            "without gaps",
+            &format!("{name}:30: fragment 'double-site'"),
+            "single bond",
+        ],
+    );
+    // Unknown role and unknown key: the TOML layer names the line.
+    let g = d.join("role.toml");
+    std::fs::write(
+        &g,
+        "[[fragment]]\nid = \"x\"\nname = \"x\"\nrole = \"donr\"\nsmiles = \"[*:1]C\"\nhandle = \"none\"\n",
+    )
+    .unwrap();
+    expect_error(
+        &["fragments", "check", g.to_str().unwrap()],
+        &[":4:", "donr"],
+    );
+    let h = d.join("key.toml");
+    std::fs::write(
+        &h,
+        "[[fragment]]\nid = \"x\"\nname = \"x\"\nrole = \"donor\"\nsmile = \"[*:1]C\"\nhandle = \"none\"\n",
+    )
+    .unwrap();
+    expect_error(
+        &["fragments", "check", h.to_str().unwrap()],
+        &[":5:", "smile"],
+    );
+    // Duplicates across files.
+    let i = d.join("dup.toml");
+    std::fs::write(
+        &i,
+        "[[fragment]]\nid = \"ok-donor\"\nname = \"x\"\nrole = \"donor\"\nsmiles = \"[*:1]N(c1ccccc1)c1ccccc1\"\nhandle = \"n-h\"\n",
+    )
+    .unwrap();
+    let j = d.join("dup2.toml");
+    std::fs::write(
+        &j,
+        "[[fragment]]\nid = \"other\"\nname = \"x\"\nrole = \"donor\"\nsmiles = \"c1ccccc1N([*:1])c1ccccc1\"\nhandle = \"n-h\"\n[[fragment]]\nid = \"ok-donor\"\nname = \"y\"\nrole = \"donor\"\nsmiles = \"[*:1]n1ccnc1\"\nhandle = \"n-h\"\n",
+    )
+    .unwrap();
+    expect_error(
+        &[
+            "fragments",
+            "check",
+            i.to_str().unwrap(),
+            j.to_str().unwrap(),
+        ],
+        &["duplicate id", "same structure as fragment 'ok-donor'"],
+    );
+    // The shipped library is valid.
+    let out = bin()
+        .args(["fragments", "check"])
+        .arg(repo().join("fragments"))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
+#[test]
+fn bad_workflows_and_stores_are_refused_without_damage() {
+    let d = temp_dir("badwf");
+    // Typo'd key.
+    let wf = workflow(&d, 16, "max_molweight = 500.0");
+    expect_error(
+        &["run", wf.to_str().unwrap()],
+        &[&wf.display().to_string(), "line 10", "max_molweight"],
+    );
+    // Unknown architecture and unknown fragment id.
+    let wf = d.join("arch.toml");
+    std::fs::write(
+        &wf,
+        format!(
+            "[campaign]\nname = \"x\"\nstore = \"s.sqlite\"\nfragments = [\"{}\"]\n[enumerate]\narchitectures = [\"D-X\"]\n",
+            repo().join("fragments").display()
+        ),
+    )
+    .unwrap();
+    expect_error(
+        &["run", wf.to_str().unwrap()],
+        &["unknown architecture 'D-X'"],
+    );
+    let wf2 = d.join("id.toml");
+    std::fs::write(
+        &wf2,
+        format!(
+            "[campaign]\nname = \"x\"\nstore = \"s.sqlite\"\nfragments = [\"{}\"]\n[enumerate]\narchitectures = [\"D-A\"]\n[enumerate.donors]\ninclude = [\"no-such-donor\"]\n",
+            repo().join("fragments").display()
+        ),
+    )
+    .unwrap();
+    expect_error(
+        &["run", wf2.to_str().unwrap()],
+        &["unknown fragment id 'no-such-donor'"],
+    );
+    // Missing workflow and missing fragment folder.
+    expect_error(&["run", "/nonexistent/wf.toml"], &["/nonexistent/wf.toml"]);
+    let wf3 = d.join("nofrag.toml");
+    std::fs::write(
+        &wf3,
+        "[campaign]\nname = \"x\"\nstore = \"s.sqlite\"\nfragments = [\"/nonexistent/frags\"]\n[enumerate]\narchitectures = [\"D-A\"]\n",
+    )
+    .unwrap();
+    expect_error(&["run", wf3.to_str().unwrap()], &["/nonexistent/frags"]);
+
+    // A corrupt file and a foreign SQLite database as the store: refused, bytes unchanged.
+    let good = workflow(&d, 16, "");
+    let junk = d.join("junk.sqlite");
+    std::fs::write(&junk, b"this is not a database, just text that happens to be long enough to look like a page header".repeat(50)).unwrap();
+    let before = std::fs::read(&junk).unwrap();
+    expect_error(
+        &[
+            "run",
+            good.to_str().unwrap(),
+            "--store",
+            junk.to_str().unwrap(),
+        ],
+        &[&junk.display().to_string(), "not a SQLite database"],
+    );
+    assert_eq!(
+        std::fs::read(&junk).unwrap(),
+        before,
+        "corrupt file was modified"
+    );
+    let foreign = d.join("foreign.sqlite");
+    {
+        let c = Connection::open(&foreign).unwrap();
+        c.execute_batch("CREATE TABLE customers(id INTEGER PRIMARY KEY, name TEXT); INSERT INTO customers(name) VALUES ('x');").unwrap();
+    }
+    let before = std::fs::read(&foreign).unwrap();
+    expect_error(
+        &[
+            "run",
+            good.to_str().unwrap(),
+            "--store",
+            foreign.to_str().unwrap(),
+        ],
+        &[
+            &foreign.display().to_string(),
+            "not a lumisift campaign store",
+        ],
+    );
+    assert_eq!(
+        std::fs::read(&foreign).unwrap(),
+        before,
+        "foreign database was modified"
+    );
+    expect_error(
+        &["export", foreign.to_str().unwrap()],
+        &["not a lumisift campaign store"],
+    );
+    expect_error(
+        &[
+            "merge",
+            d.join("m.sqlite").to_str().unwrap(),
+            foreign.to_str().unwrap(),
+        ],
+        &["not a lumisift campaign store"],
+    );
+    expect_error(
+        &["run", good.to_str().unwrap(), "--shard", "4/3"],
+        &["1 <= K <= N"],
+    );
+}
