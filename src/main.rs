@@ -199,6 +199,9 @@ fn export(store: &Path, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode 
         Ok(s) => s,
         Err(e) => return fail(e),
     };
+    if let Err(e) = st.ensure_provenance_index() {
+        return fail(e);
+    }
     let conn = st.connection();
     let result = match &csv {
         Some(p) => std::fs::File::create(p)

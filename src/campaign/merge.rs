@@ -87,7 +87,8 @@ pub fn merge(out: &Path, shards: &[PathBuf]) -> Result<MergeSummary, CampaignErr
         .map_err(&sq)?;
         let tx = conn.transaction().map_err(&sq)?;
         tx.execute_batch(
-            "INSERT OR IGNORE INTO candidates SELECT * FROM shard.candidates;
+            "INSERT OR IGNORE INTO candidates(id, canonical_smiles, formula, mol_weight, heavy_atoms)
+                SELECT id, canonical_smiles, formula, mol_weight, heavy_atoms FROM shard.candidates ORDER BY seq;
              INSERT OR IGNORE INTO tuples SELECT * FROM shard.tuples;
              INSERT OR IGNORE INTO stage_chunks SELECT * FROM shard.stage_chunks;
              INSERT OR IGNORE INTO stage_status SELECT * FROM shard.stage_status;

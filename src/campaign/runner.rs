@@ -305,9 +305,7 @@ fn build_row(lib: &Library, t: &Tuple) -> TupleRow {
     TupleRow {
         tuple_key: p.tuple_key.clone(),
         architecture: p.architecture.to_string(),
-        core: lib.fragments[t.core].id.clone(),
         fragments: p.fragments.join(","),
-        sites: p.sites.clone(),
         candidate_id: id,
         formula: props::formula(&cand.mol),
         // Every fragment was weighed when the library loaded, so all its elements are tabulated.

@@ -3,11 +3,15 @@
 //! Tables (schema version 1):
 //! - `meta(key, value)`: `app = lumisift`, `schema_version`.
 //! - `runs`: one row per invocation (tool version, workflow text, parameters, shard).
-//! - `candidates(id, canonical_smiles, formula, mol_weight, heavy_atoms)`: one row per distinct
-//!   molecule; `id` is the candidate identity (BLAKE3 of the canonical SMILES, see `chem::props`).
-//! - `tuples(tuple_key, architecture, core, fragments, sites, candidate_id)`: every admitted
-//!   combination with the candidate it built (provenance; several tuples may share a candidate).
-//!   Designed so a fast tier can fill tuples before any graph exists (`candidate_id` NULL).
+//! - `candidates(seq, id, canonical_smiles, formula, mol_weight, heavy_atoms)`: one row per
+//!   distinct molecule; `id` (unique) is the candidate identity (BLAKE3 of the canonical SMILES,
+//!   see `chem::props`); rows are appended in order, so only the small `id` index takes random
+//!   inserts.
+//! - `tuples(tuple_key, architecture, fragments, candidate_id)`: every admitted combination with
+//!   the candidate it built (provenance; several tuples may share a candidate). The key is
+//!   `architecture|core|site assignment` (see `combine::Tuple::key`). Designed so a fast tier can
+//!   fill tuples before any graph exists (`candidate_id` NULL). The index by candidate is built
+//!   when first needed (export, merge), not during enumeration.
 //! - `stage_chunks(stage, param_hash, chunk, n_tuples)`: done-marks, written in the same
 //!   transaction as the chunk's rows, so a killed run resumes without loss or duplication.
 //! - `stage_status(stage, param_hash, total_chunks, counts_json, updated_utc)`.
@@ -41,19 +45,17 @@ const MIGRATIONS: &[&str] = &[
         params_json TEXT NOT NULL,
         shard TEXT NOT NULL);
      CREATE TABLE candidates(
-        id TEXT PRIMARY KEY,
+        seq INTEGER PRIMARY KEY,
+        id TEXT NOT NULL UNIQUE,
         canonical_smiles TEXT NOT NULL,
         formula TEXT NOT NULL,
         mol_weight REAL NOT NULL,
-        heavy_atoms INTEGER NOT NULL) WITHOUT ROWID;
+        heavy_atoms INTEGER NOT NULL);
      CREATE TABLE tuples(
         tuple_key TEXT PRIMARY KEY,
         architecture TEXT NOT NULL,
-        core TEXT NOT NULL,
         fragments TEXT NOT NULL,
-        sites TEXT NOT NULL,
         candidate_id TEXT) WITHOUT ROWID;
-     CREATE INDEX tuples_by_candidate ON tuples(candidate_id);
      CREATE TABLE stage_chunks(
         stage TEXT NOT NULL,
         param_hash TEXT NOT NULL,
@@ -80,9 +82,7 @@ const MIGRATIONS: &[&str] = &[
 pub struct TupleRow {
     pub tuple_key: String,
     pub architecture: String,
-    pub core: String,
     pub fragments: String,
-    pub sites: String,
     pub candidate_id: String,
     pub canonical_smiles: String,
     pub formula: String,
@@ -120,6 +120,14 @@ impl Store {
             && std::fs::metadata(path)
                 .map(|m| m.len() > 0)
                 .unwrap_or(false);
+        if let Some(dir) = path.parent()
+            && !dir.as_os_str().is_empty()
+            && !dir.exists()
+        {
+            std::fs::create_dir_all(dir).map_err(|e| {
+                CampaignError::Other(format!("{}: cannot create folder: {e}", dir.display()))
+            })?;
+        }
         let conn = Connection::open(path).map_err(CampaignError::sqlite(path))?;
         let mut store = Store {
             path: path.to_path_buf(),
@@ -238,6 +246,11 @@ impl Store {
         self.conn
             .pragma_update(None, "synchronous", "NORMAL")
             .map_err(&sq)?;
+        // 64 MiB page cache: keeps the candidate-id index of ~10^6 rows in memory; a fixed
+        // ceiling, whatever the campaign size.
+        self.conn
+            .pragma_update(None, "cache_size", -65536)
+            .map_err(&sq)?;
         self.conn
             .busy_timeout(std::time::Duration::from_secs(30))
             .map_err(&sq)?;
@@ -339,8 +352,8 @@ impl Store {
                 .map_err(&sq)?;
             let mut tup = tx
                 .prepare_cached(
-                    "INSERT OR IGNORE INTO tuples(tuple_key, architecture, core, fragments, sites, candidate_id)
-                     VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
+                    "INSERT OR IGNORE INTO tuples(tuple_key, architecture, fragments, candidate_id)
+                     VALUES (?1, ?2, ?3, ?4)",
                 )
                 .map_err(&sq)?;
             for r in &chunk.rows {
@@ -355,9 +368,7 @@ impl Store {
                 tup.execute(params![
                     r.tuple_key,
                     r.architecture,
-                    r.core,
                     r.fragments,
-                    r.sites,
                     r.candidate_id
                 ])
                 .map_err(&sq)?;
@@ -384,6 +395,13 @@ impl Store {
             .query_row("SELECT count(*) FROM tuples", [], |r| r.get(0))
             .map_err(&sq)?;
         Ok((c as u64, t as u64))
+    }
+
+    /// The index of tuples by candidate (for provenance look-ups), built on first need.
+    pub fn ensure_provenance_index(&self) -> Result<(), CampaignError> {
+        self.conn
+            .execute_batch("CREATE INDEX IF NOT EXISTS tuples_by_candidate ON tuples(candidate_id)")
+            .map_err(CampaignError::sqlite(&self.path))
     }
 
     pub fn connection(&self) -> &Connection {

@@ -80,7 +80,7 @@ fn content(store: &Path) -> (Vec<String>, Vec<String>, Vec<String>) {
             "SELECT id || '|' || canonical_smiles || '|' || formula || '|' || printf('%.6f', mol_weight) || '|' || heavy_atoms FROM candidates ORDER BY id",
         ),
         q(
-            "SELECT tuple_key || '|' || architecture || '|' || core || '|' || fragments || '|' || sites || '|' || candidate_id FROM tuples ORDER BY tuple_key",
+            "SELECT tuple_key || '|' || architecture || '|' || fragments || '|' || candidate_id FROM tuples ORDER BY tuple_key",
         ),
         q(
             "SELECT stage || '|' || param_hash || '|' || chunk || '|' || n_tuples FROM stage_chunks ORDER BY stage, param_hash, chunk",
@@ -472,4 +472,27 @@ fn bad_workflows_and_stores_are_refused_without_damage() {
         &["run", good.to_str().unwrap(), "--shard", "4/3"],
         &["1 <= K <= N"],
     );
+}
+
+#[test]
+fn the_demo_workflow_runs() {
+    // The README's first command, with the store redirected to a temporary folder.
+    let d = temp_dir("demo");
+    let store = d.join("demo.sqlite");
+    let out = bin()
+        .arg("run")
+        .arg(repo().join("workflows/demo.toml"))
+        .arg("--store")
+        .arg(&store)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let (cands, tuples, chunks) = content(&store);
+    assert!(cands.len() > 100, "{} candidates", cands.len());
+    assert!(tuples.len() >= cands.len());
+    assert!(!chunks.is_empty());
 }
