@@ -366,6 +366,23 @@ impl<'a> Enumerator<'a> {
         }
     }
 
+    /// Bridge arms in order: bridge, then orientation, then terminal fragment.
+    fn bridged_arms(&self, bridges: &[usize], terminals: &[usize]) -> Vec<Arm> {
+        let mut v = Vec::new();
+        for &b in bridges {
+            for &o in self.orientations(b) {
+                for &t in terminals {
+                    v.push(Arm::Bridged {
+                        bridge: b,
+                        core_site: o,
+                        terminal: t,
+                    });
+                }
+            }
+        }
+        v
+    }
+
     /// Visit every raw assignment in order; `f` may stop the walk.
     pub fn for_each(&self, mut f: impl FnMut(TupleEvent) -> ControlFlow<()>) {
         for &arch in &self.params.architectures {
@@ -409,18 +426,10 @@ impl<'a> Enumerator<'a> {
                 }
             }
             Architecture::DBA => {
+                let arms = self.bridged_arms(&bridges, &donors1);
                 for &a in &acceptors1 {
-                    for &b in &bridges {
-                        for &o in self.orientations(b) {
-                            for &d in &donors1 {
-                                let arm = Arm::Bridged {
-                                    bridge: b,
-                                    core_site: o,
-                                    terminal: d,
-                                };
-                                self.emit(arch, a, &[arm], f)?;
-                            }
-                        }
+                    for &arm in &arms {
+                        self.emit(arch, a, &[arm], f)?;
                     }
                 }
             }
@@ -439,18 +448,10 @@ impl<'a> Enumerator<'a> {
                 }
             }
             Architecture::DBABD => {
+                let arms = self.bridged_arms(&bridges, &donors1);
                 for &a in &self.pick(Role::Acceptor, 2) {
-                    for &b in &bridges {
-                        for &o in self.orientations(b) {
-                            for &d in &donors1 {
-                                let arm = Arm::Bridged {
-                                    bridge: b,
-                                    core_site: o,
-                                    terminal: d,
-                                };
-                                self.emit(arch, a, &[arm, arm], f)?;
-                            }
-                        }
+                    for &arm in &arms {
+                        self.emit(arch, a, &[arm, arm], f)?;
                     }
                 }
             }

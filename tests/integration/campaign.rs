@@ -243,6 +243,13 @@ fn sampling_is_seeded_and_capped() {
     assert_ne!(a.1, c.1, "another seed, another sample");
 }
 
+/// One `[[fragment]]` entry as TOML text.
+fn entry(id: &str, role: &str, smiles: &str, handle: &str) -> String {
+    format!(
+        "[[fragment]]\nid = \"{id}\"\nname = \"{id}\"\nrole = \"{role}\"\nsmiles = \"{smiles}\"\nhandle = \"{handle}\"\n"
+    )
+}
+
 fn expect_error(args: &[&str], needles: &[&str]) {
     let out = bin().args(args).output().unwrap();
     assert!(!out.status.success(), "{args:?} should fail");
@@ -314,11 +321,7 @@ handle = "none"
     );
     // Unknown role and unknown key: the TOML layer names the line.
     let g = d.join("role.toml");
-    std::fs::write(
-        &g,
-        "[[fragment]]\nid = \"x\"\nname = \"x\"\nrole = \"donr\"\nsmiles = \"[*:1]C\"\nhandle = \"none\"\n",
-    )
-    .unwrap();
+    std::fs::write(&g, entry("x", "donr", "[*:1]C", "none")).unwrap();
     expect_error(
         &["fragments", "check", g.to_str().unwrap()],
         &[":4:", "donr"],
@@ -326,7 +329,7 @@ handle = "none"
     let h = d.join("key.toml");
     std::fs::write(
         &h,
-        "[[fragment]]\nid = \"x\"\nname = \"x\"\nrole = \"donor\"\nsmile = \"[*:1]C\"\nhandle = \"none\"\n",
+        entry("x", "donor", "[*:1]C", "none").replace("smiles", "smile"),
     )
     .unwrap();
     expect_error(
@@ -337,13 +340,14 @@ handle = "none"
     let i = d.join("dup.toml");
     std::fs::write(
         &i,
-        "[[fragment]]\nid = \"ok-donor\"\nname = \"x\"\nrole = \"donor\"\nsmiles = \"[*:1]N(c1ccccc1)c1ccccc1\"\nhandle = \"n-h\"\n",
+        entry("ok-donor", "donor", "[*:1]N(c1ccccc1)c1ccccc1", "n-h"),
     )
     .unwrap();
     let j = d.join("dup2.toml");
     std::fs::write(
         &j,
-        "[[fragment]]\nid = \"other\"\nname = \"x\"\nrole = \"donor\"\nsmiles = \"c1ccccc1N([*:1])c1ccccc1\"\nhandle = \"n-h\"\n[[fragment]]\nid = \"ok-donor\"\nname = \"y\"\nrole = \"donor\"\nsmiles = \"[*:1]n1ccnc1\"\nhandle = \"n-h\"\n",
+        entry("other", "donor", "c1ccccc1N([*:1])c1ccccc1", "n-h")
+            + &entry("ok-donor", "donor", "[*:1]n1ccnc1", "n-h"),
     )
     .unwrap();
     expect_error(
