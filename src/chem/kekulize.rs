@@ -74,8 +74,9 @@ pub(crate) fn kekulize(
             ));
         }
     }
-    // Adjacency restricted to candidate bonds between atoms that need a double bond.
-    let mut adj: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
+    // Adjacency (CSR) restricted to candidate bonds between atoms that need a double bond.
+    let mut deg = vec![0usize; n + 1];
+    let mut pairs: Vec<(usize, usize, usize)> = Vec::new();
     for e in mol.graph.edge_indices() {
         if !cand[e.index()] {
             continue;
@@ -83,10 +84,24 @@ pub(crate) fn kekulize(
         let (a, b) = mol.graph.edge_endpoints(e).expect("edge exists");
         let (a, b) = (a.index(), b.index());
         if need[a] && need[b] {
-            adj[a].push((b, e.index()));
-            adj[b].push((a, e.index()));
+            pairs.push((a, b, e.index()));
+            deg[a] += 1;
+            deg[b] += 1;
         }
     }
+    let mut offs = vec![0usize; n + 1];
+    for i in 0..n {
+        offs[i + 1] = offs[i] + deg[i];
+    }
+    let mut fill = offs.clone();
+    let mut flat = vec![(0usize, 0usize); offs[n]];
+    for &(a, b, e) in &pairs {
+        flat[fill[a]] = (b, e);
+        fill[a] += 1;
+        flat[fill[b]] = (a, e);
+        fill[b] += 1;
+    }
+    let adj = |i: usize| &flat[offs[i]..offs[i + 1]];
     // A connected piece of the need-subgraph with an odd number of atoms can never be matched;
     // naming its first atom points the user at the faulty ring (e.g. a five-membered ring of
     // aromatic carbons) rather than at an arbitrary unmatched atom elsewhere.
@@ -102,7 +117,7 @@ pub(crate) fn kekulize(
         while let Some(x) = stack.pop() {
             size += 1;
             first = first.min(x);
-            for &(y, _) in &adj[x] {
+            for &(y, _) in adj(x) {
                 if comp[y] == usize::MAX {
                     comp[y] = s0;
                     stack.push(y);
@@ -122,7 +137,7 @@ pub(crate) fn kekulize(
     }
     // Greedy: repeatedly match the unmatched atom with the fewest free partners.
     let free_count = |i: usize, mate: &Vec<usize>| {
-        adj[i]
+        adj(i)
             .iter()
             .filter(|(j, _)| mate[*j] == usize::MAX)
             .count()
@@ -146,7 +161,7 @@ pub(crate) fn kekulize(
             greedy_ok = false;
             break;
         }
-        let &(j, e) = adj[i]
+        let &(j, e) = adj(i)
             .iter()
             .filter(|(j, _)| mate[*j] == usize::MAX)
             .min_by_key(|(j, _)| (free_count(*j, &mate), *j))
@@ -168,7 +183,7 @@ pub(crate) fn kekulize(
             g.add_node(());
         }
         for &i in &idx {
-            for &(j, e) in &adj[i] {
+            for &(j, e) in adj(i) {
                 if i < j {
                     g.add_edge(
                         petgraph::graph::NodeIndex::new(local[i]),

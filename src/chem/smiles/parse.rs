@@ -88,7 +88,8 @@ struct Parser<'a> {
     prev: Option<usize>,
     pending: Option<(RawBondKind, char, usize)>,
     branches: Vec<(usize, usize)>,
-    rings: Vec<Option<RingOpen>>,
+    /// Open ring bonds by number (few at a time, so a short list beats a 100-slot table).
+    rings: Vec<(usize, RingOpen)>,
     /// Position of a '.' not yet followed by an atom.
     open_dot: Option<usize>,
 }
@@ -104,7 +105,7 @@ impl<'a> Parser<'a> {
             prev: None,
             pending: None,
             branches: Vec::new(),
-            rings: (0..100).map(|_| None).collect(),
+            rings: Vec::new(),
             open_dot: None,
         }
     }
@@ -215,14 +216,8 @@ impl<'a> Parser<'a> {
         if let Some((_, pos)) = self.branches.last() {
             return Err(self.err(*pos, K::UnclosedBranch));
         }
-        if let Some((n, r)) = self
-            .rings
-            .iter()
-            .enumerate()
-            .filter_map(|(n, r)| r.as_ref().map(|r| (n, r)))
-            .min_by_key(|(_, r)| r.pos)
-        {
-            return Err(self.err(r.pos, K::UnclosedRing(n as u32)));
+        if let Some((n, r)) = self.rings.iter().min_by_key(|(_, r)| r.pos) {
+            return Err(self.err(r.pos, K::UnclosedRing(*n as u32)));
         }
         Ok(())
     }
@@ -280,7 +275,12 @@ impl<'a> Parser<'a> {
             return Err(self.err(start, K::NothingToBond));
         };
         let bond = self.pending.take().map(|(k, c, _)| (k, c));
-        match self.rings[n].take() {
+        let open = self
+            .rings
+            .iter()
+            .position(|(k, _)| *k == n)
+            .map(|i| self.rings.swap_remove(i).1);
+        match open {
             None => {
                 let ref_slot = if self.atoms[cur].atom.chirality.is_some() {
                     self.atoms[cur].refs.push(UNFILLED_REF);
@@ -288,12 +288,15 @@ impl<'a> Parser<'a> {
                 } else {
                     None
                 };
-                self.rings[n] = Some(RingOpen {
-                    atom: cur,
-                    bond,
-                    pos: start,
-                    ref_slot,
-                });
+                self.rings.push((
+                    n,
+                    RingOpen {
+                        atom: cur,
+                        bond,
+                        pos: start,
+                        ref_slot,
+                    },
+                ));
             }
             Some(open) => {
                 if open.atom == cur {
