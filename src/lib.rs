@@ -18,4 +18,5 @@ pub mod chem;
 pub mod combine;
 pub mod fragments;
 pub mod model;
+pub mod pi;
 pub mod report;

@@ -10,4 +10,5 @@ mod combine;
 mod fingerprints;
 mod handbook;
 mod invalid_smiles;
+mod pi_engine;
 mod stereo;

@@ -1,0 +1,179 @@
+//! Configuration interaction singles (Tamm–Dancoff) on a PPP reference, singlets and triplets,
+//! with transition dipoles and oscillator strengths.
+
+use nalgebra::{DMatrix, DVector};
+
+use super::scf::{ScfResult, sorted_eigen};
+use super::{BOHR_ANGSTROM, HARTREE_EV, PppModel};
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Multiplicity {
+    Singlet,
+    Triplet,
+}
+
+/// CIS settings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CisParams {
+    /// Occupied orbitals in the active space (from the HOMO down); None = all.
+    pub n_occ: Option<usize>,
+    /// Virtual orbitals in the active space (from the LUMO up); None = all.
+    pub n_vir: Option<usize>,
+    /// States kept per multiplicity.
+    pub n_roots: usize,
+}
+
+impl Default for CisParams {
+    fn default() -> Self {
+        CisParams {
+            n_occ: None,
+            n_vir: None,
+            n_roots: 10,
+        }
+    }
+}
+
+/// One excited state.
+#[derive(Debug, Clone)]
+pub struct ExcitedState {
+    pub multiplicity: Multiplicity,
+    /// Excitation energy (eV).
+    pub energy: f64,
+    /// Oscillator strength (0 for triplets).
+    pub osc_strength: f64,
+    /// Transition dipole (e·Å; zero for triplets).
+    pub transition_dipole: [f64; 3],
+    /// CIS amplitudes X_ia (unit norm), index i·n_vir_active + a over the active space.
+    pub amplitudes: DVector<f64>,
+}
+
+/// States of both multiplicities and the active space used.
+#[derive(Debug, Clone)]
+pub struct CisResult {
+    pub singlets: Vec<ExcitedState>,
+    pub triplets: Vec<ExcitedState>,
+    /// Active occupied orbital indices (ascending) and virtual ones.
+    pub occ: Vec<usize>,
+    pub vir: Vec<usize>,
+}
+
+/// Solve CIS for singlets and triplets by full diagonalisation in the active space.
+pub fn cis(model: &PppModel, scf: &ScfResult, params: &CisParams) -> CisResult {
+    let n = model.n_sites();
+    let nocc = scf.nocc;
+    let nvir_all = n - nocc;
+    let no = params.n_occ.unwrap_or(nocc).min(nocc);
+    let nv = params.n_vir.unwrap_or(nvir_all).min(nvir_all);
+    let occ: Vec<usize> = (nocc - no..nocc).collect();
+    let vir: Vec<usize> = (nocc..nocc + nv).collect();
+    let c = &scf.coeffs;
+    let g = &scf.gamma;
+    let dim = no * nv;
+    if dim == 0 {
+        return CisResult {
+            singlets: Vec::new(),
+            triplets: Vec::new(),
+            occ,
+            vir,
+        };
+    }
+    // Transition densities on sites: Q_μ,(ia) = C_μi C_μa; (ia|jb) = Qᵀ γ Q.
+    let mut q = DMatrix::zeros(n, dim);
+    for (ii, &i) in occ.iter().enumerate() {
+        for (aa, &a) in vir.iter().enumerate() {
+            for mu in 0..n {
+                q[(mu, ii * nv + aa)] = c[(mu, i)] * c[(mu, a)];
+            }
+        }
+    }
+    let gq = g * &q;
+    let iajb = q.transpose() * &gq;
+    // (ij|ab) = Oᵀ γ V with O_μ,(ij) = C_μi C_μj and V_μ,(ab) = C_μa C_μb.
+    let mut o = DMatrix::zeros(n, no * no);
+    for (ii, &i) in occ.iter().enumerate() {
+        for (jj, &j) in occ.iter().enumerate() {
+            for mu in 0..n {
+                o[(mu, ii * no + jj)] = c[(mu, i)] * c[(mu, j)];
+            }
+        }
+    }
+    let mut v = DMatrix::zeros(n, nv * nv);
+    for (aa, &a) in vir.iter().enumerate() {
+        for (bb, &b) in vir.iter().enumerate() {
+            for mu in 0..n {
+                v[(mu, aa * nv + bb)] = c[(mu, a)] * c[(mu, b)];
+            }
+        }
+    }
+    let ijab = o.transpose() * (g * &v);
+    let eps = &scf.energies;
+    let mut a_s = DMatrix::zeros(dim, dim);
+    let mut a_t = DMatrix::zeros(dim, dim);
+    for ii in 0..no {
+        for aa in 0..nv {
+            let r = ii * nv + aa;
+            for jj in 0..no {
+                for bb in 0..nv {
+                    let s = jj * nv + bb;
+                    let k = ijab[(ii * no + jj, aa * nv + bb)];
+                    let mut ts = 2.0 * iajb[(r, s)] - k;
+                    let mut tt = -k;
+                    if r == s {
+                        let d = eps[vir[aa]] - eps[occ[ii]];
+                        ts += d;
+                        tt += d;
+                    }
+                    a_s[(r, s)] = ts;
+                    a_t[(r, s)] = tt;
+                }
+            }
+        }
+    }
+    let roots = params.n_roots.min(dim);
+    let states = |a: DMatrix<f64>, mult: Multiplicity| -> Vec<ExcitedState> {
+        let (vals, vecs) = sorted_eigen(a);
+        (0..roots)
+            .map(|k| {
+                let x = vecs.column(k).into_owned();
+                let (dip, f) = if mult == Multiplicity::Singlet {
+                    transition(model, &q, &x, vals[k])
+                } else {
+                    ([0.0; 3], 0.0)
+                };
+                ExcitedState {
+                    multiplicity: mult,
+                    energy: vals[k],
+                    osc_strength: f,
+                    transition_dipole: dip,
+                    amplitudes: x,
+                }
+            })
+            .collect()
+    };
+    CisResult {
+        singlets: states(a_s, Multiplicity::Singlet),
+        triplets: states(a_t, Multiplicity::Triplet),
+        occ,
+        vir,
+    }
+}
+
+/// Transition dipole (e·Å) and oscillator strength of a singlet with amplitudes `x`.
+fn transition(
+    model: &PppModel,
+    q: &DMatrix<f64>,
+    x: &DVector<f64>,
+    energy: f64,
+) -> ([f64; 3], f64) {
+    // Transition density on sites ρ_μ = √2 Σ_ia X_ia C_μi C_μa.
+    let rho = q * x * std::f64::consts::SQRT_2;
+    let mut d = [0.0; 3];
+    for (mu, r) in model.positions.iter().enumerate() {
+        for k in 0..3 {
+            d[k] += rho[mu] * r[k];
+        }
+    }
+    let d2_au = (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]) / (BOHR_ANGSTROM * BOHR_ANGSTROM);
+    let f = 2.0 / 3.0 * (energy / HARTREE_EV) * d2_au;
+    (d, f)
+}

@@ -1,0 +1,203 @@
+//! The PPP SCF + CIS engine on explicit models.
+//!
+//! Checks: the Hückel limit (two-electron terms off) against the analytic orbital energies
+//! α + xβ of ethylene, butadiene, benzene and naphthalene (textbook HMO values, e.g.
+//! E. Heilbronner & H. Bock, The HMO Model and its Application, Wiley 1976; quoted from memory:
+//! ethylene ±1; butadiene ±1.618, ±0.618; benzene ±2, ±1 (twice); naphthalene ±2.303, ±1.618,
+//! ±1.303, ±1, ±0.618), and the Mataga–Nishimoto PPP-CIS check values of `shared/science.md`
+//! a.6 (computed independently) for benzene and naphthalene.
+
+use lumisift::pi::{CisParams, GammaForm, PppModel, ScfParams, cis, scf};
+
+/// A regular polygon of `n` sites with side `d` (Å) in the xy plane.
+fn ring(n: usize, d: f64) -> Vec<[f64; 3]> {
+    let r = d / (2.0 * (std::f64::consts::PI / n as f64).sin());
+    (0..n)
+        .map(|k| {
+            let t = 2.0 * std::f64::consts::PI * k as f64 / n as f64;
+            [r * t.cos(), r * t.sin(), 0.0]
+        })
+        .collect()
+}
+
+fn carbon_model(positions: Vec<[f64; 3]>, bonds: &[(usize, usize)], form: GammaForm) -> PppModel {
+    let n = positions.len();
+    PppModel {
+        positions,
+        ip: vec![11.16; n],
+        gamma_self: vec![11.13; n],
+        core: vec![1.0; n],
+        beta: bonds.iter().map(|&(a, b)| (a, b, -2.39)).collect(),
+        gamma_form: form,
+    }
+}
+
+fn cycle_bonds(n: usize) -> Vec<(usize, usize)> {
+    (0..n).map(|i| (i, (i + 1) % n)).collect()
+}
+
+/// Naphthalene: two regular hexagons sharing the bond 0–5 (C–C = 1.40 Å).
+fn naphthalene() -> (Vec<[f64; 3]>, Vec<(usize, usize)>) {
+    let d = 1.40;
+    let h = d * 3f64.sqrt() / 2.0;
+    // Shared bond vertical at x = 0; ring A to the left, ring B to the right.
+    let p = vec![
+        [0.0, d / 2.0, 0.0],       // 0 shared
+        [-h, d, 0.0],              // 1
+        [-2.0 * h, d / 2.0, 0.0],  // 2
+        [-2.0 * h, -d / 2.0, 0.0], // 3
+        [-h, -d, 0.0],             // 4
+        [0.0, -d / 2.0, 0.0],      // 5 shared
+        [h, -d, 0.0],              // 6
+        [2.0 * h, -d / 2.0, 0.0],  // 7
+        [2.0 * h, d / 2.0, 0.0],   // 8
+        [h, d, 0.0],               // 9
+    ];
+    let b = vec![
+        (0, 1),
+        (1, 2),
+        (2, 3),
+        (3, 4),
+        (4, 5),
+        (5, 0),
+        (5, 6),
+        (6, 7),
+        (7, 8),
+        (8, 9),
+        (9, 0),
+    ];
+    (p, b)
+}
+
+fn huckel_x(model: &PppModel) -> Vec<f64> {
+    let r = scf(model, &ScfParams::default()).unwrap();
+    // ε = α + xβ with α = −I and β = −2.39 (so x = (ε − α)/β).
+    let mut x: Vec<f64> = r.energies.iter().map(|e| (e + 11.16) / -2.39).collect();
+    x.sort_by(|a, b| b.total_cmp(a));
+    x
+}
+
+fn assert_close(got: &[f64], want: &[f64], tol: f64, what: &str) {
+    assert_eq!(got.len(), want.len(), "{what}: {got:?}");
+    for (g, w) in got.iter().zip(want) {
+        assert!((g - w).abs() < tol, "{what}: got {got:?}, want {want:?}");
+    }
+}
+
+#[test]
+fn huckel_limit_reproduces_analytic_orbital_energies() {
+    let eth = carbon_model(vec![[0.0; 3], [1.34, 0.0, 0.0]], &[(0, 1)], GammaForm::None);
+    assert_close(&huckel_x(&eth), &[1.0, -1.0], 1e-10, "ethylene");
+    let but = carbon_model(
+        (0..4).map(|i| [1.4 * i as f64, 0.0, 0.0]).collect(),
+        &[(0, 1), (1, 2), (2, 3)],
+        GammaForm::None,
+    );
+    let phi = (1.0 + 5f64.sqrt()) / 2.0;
+    assert_close(
+        &huckel_x(&but),
+        &[phi, phi - 1.0, 1.0 - phi, -phi],
+        1e-10,
+        "butadiene",
+    );
+    let bz = carbon_model(ring(6, 1.397), &cycle_bonds(6), GammaForm::None);
+    assert_close(
+        &huckel_x(&bz),
+        &[2.0, 1.0, 1.0, -1.0, -1.0, -2.0],
+        1e-10,
+        "benzene",
+    );
+    let (p, b) = naphthalene();
+    let nap = carbon_model(p, &b, GammaForm::None);
+    // Analytic naphthalene HMO roots: ±(1+√13)/2, ±(1+√5)/2, ±(√13−1)/2, ±1, ±(√5−1)/2.
+    let s13 = 13f64.sqrt();
+    let s5 = 5f64.sqrt();
+    let mut want = vec![
+        (1.0 + s13) / 2.0,
+        (1.0 + s5) / 2.0,
+        (s13 - 1.0) / 2.0,
+        1.0,
+        (s5 - 1.0) / 2.0,
+    ];
+    let neg: Vec<f64> = want.iter().rev().map(|x| -x).collect();
+    want.extend(neg);
+    assert_close(&huckel_x(&nap), &want, 1e-10, "naphthalene");
+}
+
+#[test]
+fn benzene_mataga_nishimoto_cis_matches_check_values() {
+    // science.md a.6: S 4.907 (f 0), 6.205 (f 0), 7.030 (f 1.20, doubly degenerate); T1 2.490,
+    // T2 4.003 — quoted to 1e-3 eV.
+    let bz = carbon_model(ring(6, 1.397), &cycle_bonds(6), GammaForm::MatagaNishimoto);
+    let r = scf(&bz, &ScfParams::default()).unwrap();
+    // Orbital degeneracies (the e1g and e2u pairs).
+    assert!((r.energies[1] - r.energies[2]).abs() < 1e-9);
+    assert!((r.energies[3] - r.energies[4]).abs() < 1e-9);
+    let c = cis(&bz, &r, &CisParams::default());
+    let s: Vec<f64> = c.singlets.iter().map(|s| s.energy).collect();
+    assert!((s[0] - 4.907).abs() < 1e-3, "{s:?}");
+    assert!((s[1] - 6.205).abs() < 1e-3, "{s:?}");
+    assert!(
+        (s[2] - 7.030).abs() < 1e-3 && (s[3] - 7.030).abs() < 1e-3,
+        "{s:?}"
+    );
+    assert!(c.singlets[0].osc_strength < 1e-10 && c.singlets[1].osc_strength < 1e-10);
+    // Only the degenerate pair's summed f is meaningful: 2 × 1.20.
+    let f_pair = c.singlets[2].osc_strength + c.singlets[3].osc_strength;
+    assert!((f_pair - 2.40).abs() < 0.01, "f pair {f_pair}");
+    let t: Vec<f64> = c.triplets.iter().map(|s| s.energy).collect();
+    assert!((t[0] - 2.490).abs() < 1e-3, "{t:?}");
+    let t2 = t.iter().copied().find(|&e| e > t[0] + 0.1).unwrap();
+    assert!((t2 - 4.003).abs() < 1e-3, "{t:?}");
+}
+
+#[test]
+fn naphthalene_mataga_nishimoto_cis_matches_check_values() {
+    // science.md a.6: S 4.140 (f 0), 4.482 (0.249), 5.800 (2.07); T1 1.701, T2 2.899.
+    let (p, b) = naphthalene();
+    let nap = carbon_model(p, &b, GammaForm::MatagaNishimoto);
+    let r = scf(&nap, &ScfParams::default()).unwrap();
+    let c = cis(&nap, &r, &CisParams::default());
+    let s = &c.singlets;
+    assert!((s[0].energy - 4.140).abs() < 1e-3, "{}", s[0].energy);
+    assert!(s[0].osc_strength < 1e-3);
+    assert!((s[1].energy - 4.482).abs() < 1e-3, "{}", s[1].energy);
+    assert!(
+        (s[1].osc_strength - 0.249).abs() < 2e-3,
+        "{}",
+        s[1].osc_strength
+    );
+    let bright = s.iter().find(|x| x.osc_strength > 1.0).unwrap();
+    assert!((bright.energy - 5.800).abs() < 1e-3, "{}", bright.energy);
+    assert!((bright.osc_strength - 2.07).abs() < 0.01);
+    assert!((c.triplets[0].energy - 1.701).abs() < 1e-3);
+    assert!((c.triplets[1].energy - 2.899).abs() < 1e-3);
+}
+
+#[test]
+fn scf_invariants_hold() {
+    let (p, b) = naphthalene();
+    let nap = carbon_model(p, &b, GammaForm::MatagaNishimoto);
+    let r = scf(&nap, &ScfParams::default()).unwrap();
+    let n = nap.n_sites();
+    // Orthonormal orbitals.
+    let ctc = r.coeffs.transpose() * &r.coeffs;
+    for i in 0..n {
+        for j in 0..n {
+            let want = if i == j { 1.0 } else { 0.0 };
+            assert!((ctc[(i, j)] - want).abs() < 1e-10);
+        }
+    }
+    // Trace of P equals the electron count; idempotency P S P = 2P (S = 1).
+    assert!((r.density.trace() - 10.0).abs() < 1e-10);
+    let pp = &r.density * &r.density;
+    assert!((pp - &r.density * 2.0).amax() < 1e-9);
+    // Alternant hydrocarbon: uniform charge density (Coulson–Rushbrooke theorem).
+    for i in 0..n {
+        assert!((r.density[(i, i)] - 1.0).abs() < 1e-8);
+    }
+    // Odd electron counts are refused.
+    let mut bad = nap.clone();
+    bad.core[0] = 2.0;
+    assert!(scf(&bad, &ScfParams::default()).is_err());
+}
