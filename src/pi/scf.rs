@@ -103,7 +103,7 @@ fn fock(h: &DMatrix<f64>, gamma: &DMatrix<f64>, p: &DMatrix<f64>) -> DMatrix<f64
 
 fn density(c: &DMatrix<f64>, nocc: usize) -> DMatrix<f64> {
     let occ = c.columns(0, nocc);
-    (&occ * occ.transpose()) * 2.0
+    (occ * occ.transpose()) * 2.0
 }
 
 /// Solve the closed-shell PPP SCF for `model`.
