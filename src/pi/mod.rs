@@ -26,7 +26,9 @@
 //! exactly. Later layers correct and flag both.
 
 mod cis;
+pub mod params;
 mod scf;
+pub mod typing;
 
 pub use cis::{CisParams, CisResult, ExcitedState, Multiplicity, cis};
 pub use scf::{ScfInfo, ScfParams, ScfResult, scf};

@@ -11,4 +11,5 @@ mod fingerprints;
 mod handbook;
 mod invalid_smiles;
 mod pi_engine;
+mod pi_typing;
 mod stereo;

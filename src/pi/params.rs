@@ -1,0 +1,154 @@
+//! PPP parameter sets: the shipped default (`data/ppp-params.toml`, each value with its source)
+//! or a user's file of the same form.
+
+use std::collections::BTreeMap;
+
+use serde::Deserialize;
+
+use super::GammaForm;
+
+/// The shipped parameter file's text.
+pub const DEFAULT_PARAMS: &str = include_str!("../../data/ppp-params.toml");
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawParams {
+    name: String,
+    gamma_form: String,
+    beta_cc: f64,
+    site: Vec<RawSite>,
+    #[serde(default)]
+    bond: Vec<RawBond>,
+    inductive: Inductive,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSite {
+    #[serde(rename = "type")]
+    kind: String,
+    electrons: u8,
+    ip: f64,
+    gamma: f64,
+    source: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawBond {
+    types: (String, String),
+    k: f64,
+}
+
+/// Inductive shifts for σ-acceptor groups that carry no π orbital.
+#[derive(Debug, Clone, Copy, PartialEq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Inductive {
+    pub sulfone_ip_shift: f64,
+    pub phosphine_oxide_ip_shift: f64,
+}
+
+/// One site type's parameters.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SiteParams {
+    pub electrons: u8,
+    pub ip: f64,
+    pub gamma: f64,
+    pub source: String,
+}
+
+/// A resolved parameter set.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PppParams {
+    pub name: String,
+    pub gamma_form: GammaForm,
+    pub beta_cc: f64,
+    pub sites: BTreeMap<String, SiteParams>,
+    /// β factors by unordered type pair (sorted names).
+    pub bond_k: BTreeMap<(String, String), f64>,
+    pub inductive: Inductive,
+}
+
+impl PppParams {
+    /// The shipped default set.
+    pub fn default_set() -> PppParams {
+        PppParams::parse(DEFAULT_PARAMS).expect("the shipped parameter file is valid")
+    }
+
+    /// Parse a parameter file; the error names the line and what is wrong.
+    pub fn parse(text: &str) -> Result<PppParams, String> {
+        let raw: RawParams = toml::from_str(text).map_err(|e| {
+            let line = e
+                .span()
+                .map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1)
+                .unwrap_or(0);
+            format!("line {line}: {}", e.message().trim())
+        })?;
+        let gamma_form = match raw.gamma_form.as_str() {
+            "mataga-nishimoto" => GammaForm::MatagaNishimoto,
+            "ohno" => GammaForm::Ohno,
+            other => {
+                return Err(format!(
+                    "gamma_form '{other}': expected mataga-nishimoto or ohno"
+                ));
+            }
+        };
+        let mut sites = BTreeMap::new();
+        for s in raw.site {
+            if s.electrons > 2 || !(s.ip.is_finite() && s.gamma > 0.0) {
+                return Err(format!(
+                    "site '{}': electrons 0–2, ip finite, gamma > 0",
+                    s.kind
+                ));
+            }
+            if sites
+                .insert(
+                    s.kind.clone(),
+                    SiteParams {
+                        electrons: s.electrons,
+                        ip: s.ip,
+                        gamma: s.gamma,
+                        source: s.source,
+                    },
+                )
+                .is_some()
+            {
+                return Err(format!("site '{}' defined twice", s.kind));
+            }
+        }
+        let mut bond_k = BTreeMap::new();
+        for b in raw.bond {
+            for t in [&b.types.0, &b.types.1] {
+                if !sites.contains_key(t) {
+                    return Err(format!("bond factor names unknown site type '{t}'"));
+                }
+            }
+            bond_k.insert(pair_key(&b.types.0, &b.types.1), b.k);
+        }
+        Ok(PppParams {
+            name: raw.name,
+            gamma_form,
+            beta_cc: raw.beta_cc,
+            sites,
+            bond_k,
+            inductive: raw.inductive,
+        })
+    }
+
+    /// β for a bond between two site types (untwisted); `None` when the pair is not
+    /// parameterised (C–C is β_CC itself).
+    pub fn beta(&self, a: &str, b: &str) -> Option<f64> {
+        if a == "C" && b == "C" {
+            return Some(self.beta_cc);
+        }
+        self.bond_k.get(&pair_key(a, b)).map(|k| k * self.beta_cc)
+    }
+}
+
+fn pair_key(a: &str, b: &str) -> (String, String) {
+    if a <= b {
+        (a.to_string(), b.to_string())
+    } else {
+        (b.to_string(), a.to_string())
+    }
+}
