@@ -17,6 +17,7 @@ pub mod campaign;
 pub mod chem;
 pub mod combine;
 pub mod fragments;
+pub mod geometry;
 pub mod model;
 pub mod pi;
 pub mod report;

@@ -25,6 +25,8 @@
 //! too low (science.md a.6); under ZDO a perpendicular donor–acceptor bond gives ΔEST = f = 0
 //! exactly. Later layers correct and flag both.
 
+pub mod analysis;
+pub mod build;
 mod cis;
 pub mod params;
 mod scf;
@@ -73,6 +75,8 @@ pub enum PiError {
     BadModel(String),
     #[error("odd number of π electrons ({0}): closed-shell SCF needs an even count")]
     OddElectrons(u32),
+    #[error("not parameterised: {0}")]
+    NotParameterised(String),
     #[error(
         "SCF not converged after {iterations} iterations (last energy change {delta_e:.2e} eV, density change {delta_p:.2e})"
     )]

@@ -1,0 +1,199 @@
+//! Geometry: layout against idealised bond lengths (values in `geometry::lengths`, Allen et al.
+//! 1987), ring shapes, sp3 lift, hydrogens, rotation about a link bond, and the writers. Rings
+//! are regular polygons with the mean ideal side, so a non-aromatic ring mixing bond kinds
+//! (acridan's central ring) deviates by up to about 0.1 Å: the tolerance says so.
+
+use lumisift::chem::{AtomIdx, parse_smiles};
+use lumisift::geometry::{
+    ideal_length, layout, rotate_about_bond, sdf_block, with_hydrogens, xyz_block,
+};
+
+fn d(a: [f64; 3], b: [f64; 3]) -> f64 {
+    ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt()
+}
+
+/// Largest deviation of any bond from its ideal length.
+fn worst_bond(smiles: &str) -> f64 {
+    let m = parse_smiles(smiles).unwrap();
+    let c = layout(&m);
+    m.graph
+        .edge_indices()
+        .map(|e| {
+            let (a, b) = m.graph.edge_endpoints(e).unwrap();
+            let want = ideal_length(
+                m.atom(a).element,
+                m.atom(b).element,
+                m.bond(e),
+                m.atom(a).aromatic,
+                m.atom(b).aromatic,
+            );
+            (d(c.points[a.index()], c.points[b.index()]) - want).abs()
+        })
+        .fold(0.0, f64::max)
+}
+
+#[test]
+fn bond_lengths_follow_the_ideal_values() {
+    for (smi, tol) in [
+        ("c1ccccc1", 1e-9),
+        ("c1ccc2ccccc2c1", 1e-9),
+        ("c1cc2ccc3cccc4ccc(c1)c2c34", 1e-9), // pyrene, peri-fused
+        ("c1ccc(cc1)-c1ccccc1", 1e-9),
+        ("N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21", 0.05), // a pentagon fused to hexagons
+        ("CC1(C)c2ccccc2Nc2ccccc21", 0.12),          // regular hexagon, mixed bond lengths
+        ("CCCCCCCC", 1e-9),
+        ("C1CC2(CC1)CCCC2", 1e-9), // spiro
+    ] {
+        let w = worst_bond(smi);
+        assert!(w <= tol, "{smi}: worst bond deviation {w}");
+    }
+}
+
+#[test]
+fn every_fixture_molecule_is_laid_out_without_collapsed_atoms() {
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/fixtures/rdkit_molecules.jsonl"
+    ))
+    .unwrap();
+    for line in text.lines().take(200) {
+        let v: serde_json::Value = serde_json::from_str(line).unwrap();
+        let m = parse_smiles(v["rdkit_canonical"].as_str().unwrap()).unwrap();
+        let c = layout(&m);
+        assert_eq!(c.points.len(), m.atom_count());
+        // Bonded atoms at their bond length (never on top of each other), all finite.
+        for e in m.graph.edge_indices() {
+            let (a, b) = m.graph.edge_endpoints(e).unwrap();
+            let r = d(c.points[a.index()], c.points[b.index()]);
+            assert!(r > 0.9 && r < 2.2, "{}: bond of {r} Å", v["id"]);
+        }
+        assert!(c.points.iter().flatten().all(|x| x.is_finite()));
+    }
+}
+
+#[test]
+fn acridan_methyls_leave_the_ring_plane_and_hydrogens_are_placed() {
+    let m = parse_smiles("CC1(C)c2ccccc2Nc2ccccc21").unwrap();
+    let c = layout(&m);
+    let methyls: Vec<usize> = m
+        .atoms()
+        .filter(|&a| m.atom(a).element == 6 && m.atom(a).hydrogens == 3)
+        .map(|a| a.index())
+        .collect();
+    assert_eq!(methyls.len(), 2);
+    let z: Vec<f64> = methyls.iter().map(|&a| c.points[a][2]).collect();
+    assert!(
+        z[0] * z[1] < 0.0 && z[0].abs() > 1.0,
+        "one above, one below: {z:?}"
+    );
+    let (mh, ch) = with_hydrogens(&m, &c);
+    assert_eq!(mh.atom_count(), m.atom_count() + 15, "C15H15N");
+    // Every H at its X–H length from its heavy atom, and no H on top of another atom.
+    for a in mh.atoms() {
+        if mh.atom(a).element != 1 {
+            continue;
+        }
+        let (p, _) = mh.neighbours(a).next().unwrap();
+        let r = d(ch.points[a.index()], ch.points[p.index()]);
+        assert!(
+            (r - 1.08).abs() < 0.02 || (r - 1.01).abs() < 0.02,
+            "X–H {r}"
+        );
+        for b in mh.atoms() {
+            if b != a {
+                assert!(d(ch.points[a.index()], ch.points[b.index()]) > 0.9);
+            }
+        }
+    }
+}
+
+#[test]
+fn rotation_about_a_link_sets_the_dihedral() {
+    let m = parse_smiles("c1ccc(cc1)-c1ccccc1").unwrap();
+    let mut c = layout(&m);
+    let link = m
+        .graph
+        .edge_indices()
+        .find(|&e| !m.bond(e).aromatic)
+        .unwrap();
+    let (a, b) = m.graph.edge_endpoints(link).unwrap();
+    assert!(rotate_about_bond(
+        &m,
+        &mut c.points,
+        a.index(),
+        b.index(),
+        44.4f64.to_radians()
+    ));
+    // Dihedral between an ortho atom on each side.
+    let oa = m.neighbours(a).find(|&(x, _)| x != b).unwrap().0;
+    let ob = m.neighbours(b).find(|&(x, _)| x != a).unwrap().0;
+    let p = |i: AtomIdx| c.points[i.index()];
+    let dihedral = {
+        let b1 = sub(p(a), p(oa));
+        let b2 = sub(p(b), p(a));
+        let b3 = sub(p(ob), p(b));
+        let n1 = cross(b1, b2);
+        let n2 = cross(b2, b3);
+        let cos = dot(n1, n2) / (dot(n1, n1).sqrt() * dot(n2, n2).sqrt());
+        cos.clamp(-1.0, 1.0).acos().to_degrees()
+    };
+    let folded = dihedral.min(180.0 - dihedral);
+    assert!((folded - 44.4).abs() < 1e-6, "dihedral {dihedral}");
+    // Bond lengths are unchanged by the rotation.
+    assert!((d(p(a), p(b)) - 1.49).abs() < 1e-9);
+    // A ring bond cannot be rotated about.
+    let ring_bond = m
+        .graph
+        .edge_indices()
+        .find(|&e| m.bond(e).aromatic)
+        .unwrap();
+    let (x, y) = m.graph.edge_endpoints(ring_bond).unwrap();
+    assert!(!rotate_about_bond(
+        &m,
+        &mut c.points,
+        x.index(),
+        y.index(),
+        1.0
+    ));
+}
+
+fn sub(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
+}
+fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [
+        a[1] * b[2] - a[2] * b[1],
+        a[2] * b[0] - a[0] * b[2],
+        a[0] * b[1] - a[1] * b[0],
+    ]
+}
+fn dot(a: [f64; 3], b: [f64; 3]) -> f64 {
+    a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
+}
+
+#[test]
+fn xyz_and_sdf_writers_round_trip_the_structure() {
+    let m = parse_smiles("C[n+]1ccccc1.[2H]c1ccccc1").unwrap();
+    let c = layout(&m);
+    let (mh, ch) = with_hydrogens(&m, &c);
+    let xyz = xyz_block(&mh, &ch, "test");
+    let lines: Vec<&str> = xyz.lines().collect();
+    assert_eq!(lines[0].trim().parse::<usize>().unwrap(), mh.atom_count());
+    assert_eq!(lines.len(), mh.atom_count() + 2);
+    let sdf = sdf_block(&mh, &ch, "test", &[("formula", "C12H14DN+".into())]);
+    let sl: Vec<&str> = sdf.lines().collect();
+    // Counts line: atoms and bonds, V2000.
+    assert!(sl[3].ends_with("V2000"));
+    assert_eq!(
+        sl[3][0..3].trim().parse::<usize>().unwrap(),
+        mh.atom_count()
+    );
+    assert_eq!(
+        sl[3][3..6].trim().parse::<usize>().unwrap(),
+        mh.bond_count()
+    );
+    assert!(sdf.contains("M  CHG  1"));
+    assert!(sdf.contains("M  ISO  1"));
+    assert!(sdf.contains(">  <formula>\nC12H14DN+"));
+    assert!(sdf.trim_end().ends_with("$$$$"));
+}
