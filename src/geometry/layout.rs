@@ -457,7 +457,7 @@ fn lift_sp3(mol: &Molecule, points: &mut [Point]) {
 }
 
 /// Atoms reachable from `start` without passing through `from` (a branch of a bridge bond).
-pub(crate) fn branch(mol: &Molecule, from: usize, start: usize) -> Vec<usize> {
+pub fn branch(mol: &Molecule, from: usize, start: usize) -> Vec<usize> {
     let mut seen = vec![false; mol.atom_count()];
     seen[from] = true;
     seen[start] = true;

@@ -11,9 +11,10 @@
 
 mod layout;
 mod lengths;
+pub mod steric;
 mod writers;
 
-pub use layout::{Coordinates, layout, rotate_about_bond, with_hydrogens};
+pub use layout::{Coordinates, branch, layout, rotate_about_bond, with_hydrogens};
 pub use lengths::ideal_length;
 pub use writers::{sdf_block, xyz_block};
 

@@ -30,6 +30,7 @@ pub mod build;
 mod cis;
 pub mod params;
 mod scf;
+pub mod torsion;
 pub mod typing;
 
 pub use cis::{CisParams, CisResult, ExcitedState, Multiplicity, cis};

@@ -20,6 +20,15 @@ struct RawParams {
     #[serde(default)]
     bond: Vec<RawBond>,
     inductive: Inductive,
+    torsion: TorsionScales,
+}
+
+/// The two fitted scales of the torsion model (see `pi::torsion`).
+#[derive(Debug, Clone, Copy, PartialEq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TorsionScales {
+    pub conjugation_scale: f64,
+    pub steric_scale: f64,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -67,6 +76,7 @@ pub struct PppParams {
     /// β factors by unordered type pair (sorted names).
     pub bond_k: BTreeMap<(String, String), f64>,
     pub inductive: Inductive,
+    pub torsion: TorsionScales,
 }
 
 impl PppParams {
@@ -132,6 +142,7 @@ impl PppParams {
             sites,
             bond_k,
             inductive: raw.inductive,
+            torsion: raw.torsion,
         })
     }
 

@@ -13,5 +13,6 @@ mod handbook;
 mod invalid_smiles;
 mod pi_engine;
 mod pi_physics;
+mod pi_torsion;
 mod pi_typing;
 mod stereo;
