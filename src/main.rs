@@ -63,6 +63,23 @@ enum Command {
         #[arg(long)]
         smi: Option<PathBuf>,
     },
+    /// One molecule in depth: units and their roles, torsion of each link, excited states
+    /// (S1, T1, ΔEST, f, charge-transfer character) at the equilibrium twist, torsion averages.
+    Inspect {
+        smiles: String,
+        /// Fix every link at this twist (degrees) instead of the torsion model.
+        #[arg(long)]
+        twist: Option<f64>,
+        /// Temperature for the Boltzmann distribution over twists (K).
+        #[arg(long, default_value_t = 300.0)]
+        temperature: f64,
+        /// A PPP parameter file of the shipped form (default: the shipped set).
+        #[arg(long)]
+        params: Option<PathBuf>,
+        /// Everything as JSON.
+        #[arg(long)]
+        json: bool,
+    },
     /// Fragment library tools.
     Fragments {
         #[command(subcommand)]
@@ -95,6 +112,13 @@ fn main() -> ExitCode {
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
         } => fragments_check(&paths),
+        Command::Inspect {
+            smiles,
+            twist,
+            temperature,
+            params,
+            json,
+        } => inspect(&smiles, twist, temperature, params.as_deref(), json),
     }
 }
 
@@ -226,6 +250,148 @@ fn export(store: &Path, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode 
         }
     }
     eprintln!("exported {n} candidates");
+    ExitCode::SUCCESS
+}
+
+fn inspect(
+    smiles: &str,
+    twist: Option<f64>,
+    temperature: f64,
+    params: Option<&Path>,
+    json: bool,
+) -> ExitCode {
+    use lumisift::pi::estimate::{EstimateParams, estimate};
+    use lumisift::pi::params::PppParams;
+    let mol = match lumisift::chem::parse_smiles(smiles) {
+        Ok(m) => m,
+        Err(e) => return fail(format!("SMILES '{smiles}': {e}")),
+    };
+    let ppp = match params {
+        None => PppParams::default_set(),
+        Some(p) => match std::fs::read_to_string(p)
+            .map_err(|e| e.to_string())
+            .and_then(|t| PppParams::parse(&t))
+        {
+            Ok(x) => x,
+            Err(e) => return fail(format!("{}: {e}", p.display())),
+        },
+    };
+    if temperature.is_nan() || temperature <= 0.0 {
+        return fail("--temperature must be positive (K)");
+    }
+    let p = EstimateParams {
+        temperature_k: temperature,
+        twist_deg: twist,
+        ..EstimateParams::default()
+    };
+    let est = match estimate(&mol, &ppp, &p) {
+        Ok(e) => e,
+        Err(e) => return fail(format!("{smiles}: {e}")),
+    };
+    if json {
+        let canonical = lumisift::chem::canonical_smiles(&mol);
+        let out = serde_json::json!({
+            "input": smiles,
+            "canonical_smiles": canonical,
+            "candidate_id": lumisift::chem::candidate_id(&canonical),
+            "temperature_k": temperature,
+            "estimate": est,
+            "caution": "π-tier estimates (PPP-CIS), uncalibrated: raw triplets of local excitations run low and CT states high; see the contributor guide",
+        });
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&out).expect("serialisable")
+        );
+        return ExitCode::SUCCESS;
+    }
+    println!("{smiles}");
+    println!("canonical {}", lumisift::chem::canonical_smiles(&mol));
+    println!();
+    println!("units (cut at single bonds between ring systems):");
+    println!(
+        "  {:>4} {:<15} {:>6} {:>9} {:>9}",
+        "unit", "role", "atoms", "HOMO/eV", "LUMO/eV"
+    );
+    for (i, u) in est.units.iter().enumerate() {
+        println!(
+            "  {:>4} {:<15} {:>6} {:>9.3} {:>9.3}",
+            i,
+            u.role,
+            u.atoms.len(),
+            u.homo_ev,
+            u.lumo_ev
+        );
+    }
+    if !est.links.is_empty() {
+        println!();
+        println!("torsion (kJ/mol, Boltzmann weight at {temperature} K):");
+        for l in &est.links {
+            println!(
+                "  link atoms {}–{}: equilibrium {:.1}°",
+                l.atoms.0 + 1,
+                l.atoms.1 + 1,
+                l.equilibrium_deg
+            );
+            if l.scan.len() > 1 {
+                let row: Vec<String> = l
+                    .scan
+                    .iter()
+                    .map(|(t, e, w)| format!("{t:.0}°:{e:.1}({w:.2})"))
+                    .collect();
+                println!("    {}", row.join("  "));
+            }
+        }
+    }
+    println!();
+    println!("states at the equilibrium twist:");
+    println!(
+        "  {:<8} {:>8} {:>8} {:>6} {:<6} {:>5} {:>5}",
+        "state", "E/eV", "f", "CT", "label", "hole", "elec"
+    );
+    for (k, s) in est.singlets.iter().enumerate() {
+        println!(
+            "  S{:<7} {:>8.3} {:>8.4} {:>6.2} {:<6} {:>5} {:>5}",
+            k + 1,
+            s.energy_ev,
+            s.osc_strength,
+            s.ct_number,
+            s.label,
+            s.hole_unit,
+            s.electron_unit
+        );
+    }
+    for (k, s) in est.triplets.iter().enumerate() {
+        println!(
+            "  T{:<7} {:>8.3} {:>8} {:>6.2} {:<6} {:>5} {:>5}",
+            k + 1,
+            s.energy_ev,
+            "-",
+            s.ct_number,
+            s.label,
+            s.hole_unit,
+            s.electron_unit
+        );
+    }
+    println!();
+    println!(
+        "S1 {:.3} eV  T1 {:.3} eV  ΔEST {:.3} eV  f(S1) {:.4}  HOMO {:.3}  LUMO {:.3}  HOMO–LUMO overlap {:.3}",
+        est.s1_ev,
+        est.t1_ev,
+        est.delta_est_ev,
+        est.f_s1,
+        est.homo_ev,
+        est.lumo_ev,
+        est.homo_lumo_overlap
+    );
+    println!(
+        "torsion-averaged: S1 {:.3} eV  T1 {:.3} eV  ΔEST {:.3} eV  f(S1) {:.4}",
+        est.avg_s1_ev, est.avg_t1_ev, est.avg_delta_est_ev, est.avg_f_s1
+    );
+    println!();
+    println!(
+        "Caution: uncalibrated π-tier estimates (PPP-CIS, parameters '{}'): raw local triplets run low and CT states high; not yet corrected (work in progress).",
+        est.parameters
+    );
     ExitCode::SUCCESS
 }
 

@@ -28,6 +28,7 @@
 pub mod analysis;
 pub mod build;
 mod cis;
+pub mod estimate;
 pub mod params;
 mod scf;
 pub mod torsion;

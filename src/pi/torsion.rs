@@ -134,6 +134,17 @@ pub fn profile(raw: &[(f64, f64, f64)], tp: &TorsionParams) -> TorsionProfile {
             }
         }
     }
+    // A rotor symmetric about 90° (E(θ) = E(180° − θ) on a symmetric grid) has two equivalent
+    // minima: report the one at or below 90°.
+    let symmetric = points.iter().all(|p| {
+        points
+            .iter()
+            .find(|q| (q.theta_deg - (180.0 - p.theta_deg)).abs() < 1e-9)
+            .is_some_and(|q| (q.e_total - p.e_total).abs() < 1e-6)
+    });
+    if symmetric && eq > 90.0 {
+        eq = 180.0 - eq;
+    }
     TorsionProfile {
         points,
         equilibrium_deg: eq,

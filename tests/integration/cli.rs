@@ -101,3 +101,72 @@ fn molinfo_on_a_missing_file_says_so() {
     let stderr = String::from_utf8(out.stderr).unwrap();
     assert!(stderr.contains("/nonexistent/molecules.smi"), "{stderr}");
 }
+
+#[test]
+fn inspect_reports_units_torsion_and_states() {
+    let out = bin()
+        .args(["inspect", "N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21", "--json"])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let est = &v["estimate"];
+    // Two units: carbazole (donor, higher HOMO) and benzonitrile (acceptor, lower LUMO).
+    let units = est["units"].as_array().unwrap();
+    assert_eq!(units.len(), 2);
+    let role = |n: usize| {
+        units
+            .iter()
+            .find(|u| u["atoms"].as_array().unwrap().len() == n)
+            .unwrap()["role"]
+            .as_str()
+            .unwrap()
+            .to_string()
+    };
+    assert_eq!(role(13), "donor");
+    assert_eq!(role(8), "acceptor");
+    // One link, twisted (N-aryl carbazole: well away from planar and from perpendicular).
+    let eq = est["links"][0]["equilibrium_deg"].as_f64().unwrap();
+    assert!((40.0..=70.0).contains(&eq), "{eq}");
+    let s1 = est["s1_ev"].as_f64().unwrap();
+    let t1 = est["t1_ev"].as_f64().unwrap();
+    assert!(s1 > t1 && (est["delta_est_ev"].as_f64().unwrap() - (s1 - t1)).abs() < 1e-12);
+    assert!(v["caution"].as_str().unwrap().contains("uncalibrated"));
+    // A fixed twist of 90°: the pure CT states are dark.
+    let out = bin()
+        .args([
+            "inspect",
+            "N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21",
+            "--twist",
+            "90",
+            "--json",
+        ])
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    for s in v["estimate"]["singlets"].as_array().unwrap() {
+        if s["ct_number"].as_f64().unwrap() > 0.999 {
+            assert!(s["osc_strength"].as_f64().unwrap() < 1e-10);
+        }
+    }
+    // Human output and a clear error for an element outside the parameter set.
+    let out = bin()
+        .args(["inspect", "c1ccccc1-c1cc[te]c1"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("not parameterised: Te"));
+    let out = bin()
+        .args(["inspect", "c1ccccc1-c1ccccc1"])
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("ΔEST") && text.contains("torsion-averaged"),
+        "{text}"
+    );
+}

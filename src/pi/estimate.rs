@@ -1,0 +1,404 @@
+//! One molecule in depth: units, torsion of every link, states at the equilibrium twists with
+//! their characters, and torsion-averaged S1, T1, ΔEST and f.
+//!
+//! Units: the molecule is cut at every single, non-ring bond between two ring atoms (the bonds
+//! between ring systems, which twist); chains stay with the ring system they hang on. Each
+//! unit's role comes from its own π calculation (capped with hydrogen): the unit with the
+//! highest HOMO is the donor, the one with the lowest LUMO the acceptor.
+//!
+//! Torsion: each link is scanned from 0° to 180° in `scan_step_deg` steps with the other links
+//! planar (`pi::torsion`); the equilibrium geometry puts every link at its minimum. Averaging
+//! scheme (stated approximation): each link in turn is moved over its scan with the others at
+//! equilibrium and the properties are Boltzmann-averaged over that link's weights; with several
+//! links the per-link averages are combined with equal weight. Rates that depend exponentially
+//! on gaps must be averaged per angle downstream, never computed from these averages.
+
+use serde::Serialize;
+
+use crate::chem::{AtomIdx, Molecule, rings};
+use crate::geometry::{Coordinates, layout, rotate_about_bond};
+
+use super::analysis::characterise;
+use super::build::build_model;
+use super::params::PppParams;
+use super::torsion::{TorsionParams, profile, raw_scan};
+use super::{CisParams, Multiplicity, PiError, ScfParams, cis, scf};
+
+/// Settings of an estimate.
+#[derive(Debug, Clone, PartialEq)]
+pub struct EstimateParams {
+    pub temperature_k: f64,
+    /// Fix every link at this twist (degrees) instead of the torsion model.
+    pub twist_deg: Option<f64>,
+    pub scan_step_deg: f64,
+    /// States kept per multiplicity.
+    pub n_states: usize,
+    /// CT number at or above which a state is labelled CT, at or below which LE.
+    pub ct_threshold: f64,
+    pub le_threshold: f64,
+}
+
+impl Default for EstimateParams {
+    fn default() -> Self {
+        EstimateParams {
+            temperature_k: 300.0,
+            twist_deg: None,
+            scan_step_deg: 15.0,
+            n_states: 6,
+            ct_threshold: 0.7,
+            le_threshold: 0.3,
+        }
+    }
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct UnitInfo {
+    pub atoms: Vec<usize>,
+    /// "donor", "acceptor", "donor+acceptor" (one unit only) or "bridge/other".
+    pub role: String,
+    pub homo_ev: f64,
+    pub lumo_ev: f64,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct LinkInfo {
+    /// Atom indices (0-based) of the bond.
+    pub atoms: (usize, usize),
+    pub equilibrium_deg: f64,
+    /// (θ in degrees, total energy in kJ/mol, Boltzmann weight).
+    pub scan: Vec<(f64, f64, f64)>,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct StateInfo {
+    pub multiplicity: &'static str,
+    pub energy_ev: f64,
+    pub osc_strength: f64,
+    pub ct_number: f64,
+    /// "CT", "LE" or "mixed".
+    pub label: &'static str,
+    /// Unit holding most of the hole / the electron.
+    pub hole_unit: usize,
+    pub electron_unit: usize,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct Estimate {
+    pub units: Vec<UnitInfo>,
+    pub links: Vec<LinkInfo>,
+    pub twists_deg: Vec<f64>,
+    pub homo_ev: f64,
+    pub lumo_ev: f64,
+    /// Spatial overlap Σ_μ |c_μH c_μL| of the HOMO and LUMO on the π sites (0 = separated).
+    pub homo_lumo_overlap: f64,
+    pub singlets: Vec<StateInfo>,
+    pub triplets: Vec<StateInfo>,
+    pub s1_ev: f64,
+    pub t1_ev: f64,
+    pub delta_est_ev: f64,
+    pub f_s1: f64,
+    /// Torsion-averaged values (equal to the equilibrium ones when the twist is fixed).
+    pub avg_s1_ev: f64,
+    pub avg_t1_ev: f64,
+    pub avg_delta_est_ev: f64,
+    pub avg_f_s1: f64,
+    pub parameters: String,
+}
+
+/// Links: single non-ring bonds between two ring atoms.
+pub fn links(mol: &Molecule) -> Vec<(usize, usize)> {
+    let ring = rings::ring_bonds(mol);
+    let ra = rings::ring_atoms(mol, &ring);
+    mol.graph
+        .edge_indices()
+        .filter(|e| !ring[e.index()] && !mol.bond(*e).aromatic)
+        .filter_map(|e| {
+            let (a, b) = mol.graph.edge_endpoints(e).expect("edge exists");
+            (ra[a.index()] && ra[b.index()]).then_some((a.index(), b.index()))
+        })
+        .collect()
+}
+
+/// Unit of every atom after cutting `links`.
+pub fn units(mol: &Molecule, links: &[(usize, usize)]) -> Vec<usize> {
+    let n = mol.atom_count();
+    let mut unit = vec![usize::MAX; n];
+    let mut count = 0;
+    for s in 0..n {
+        if unit[s] != usize::MAX {
+            continue;
+        }
+        unit[s] = count;
+        let mut stack = vec![s];
+        while let Some(x) = stack.pop() {
+            for (y, _) in mol.neighbours(AtomIdx::new(x)) {
+                let y = y.index();
+                let cut = links
+                    .iter()
+                    .any(|&(a, b)| (a == x && b == y) || (a == y && b == x));
+                if !cut && unit[y] == usize::MAX {
+                    unit[y] = count;
+                    stack.push(y);
+                }
+            }
+        }
+        count += 1;
+    }
+    unit
+}
+
+/// The unit as its own molecule, each cut bond replaced by a hydrogen.
+fn unit_molecule(mol: &Molecule, atoms: &[usize]) -> Molecule {
+    let mut map = vec![usize::MAX; mol.atom_count()];
+    let mut m = Molecule::new();
+    for &a in atoms {
+        let mut at = mol.atom(AtomIdx::new(a)).clone();
+        at.stereo_refs.clear();
+        at.chirality = None;
+        map[a] = m.add_atom(at).index();
+    }
+    for e in mol.graph.edge_indices() {
+        let (x, y) = mol.graph.edge_endpoints(e).expect("edge exists");
+        match (map[x.index()], map[y.index()]) {
+            (usize::MAX, usize::MAX) => {}
+            (usize::MAX, j) | (j, usize::MAX) => m.atom_mut(AtomIdx::new(j)).hydrogens += 1,
+            (i, j) => {
+                let mut b = *mol.bond(e);
+                b.stereo = None;
+                m.add_bond(AtomIdx::new(i), AtomIdx::new(j), b);
+            }
+        }
+    }
+    m
+}
+
+struct Snapshot {
+    homo: f64,
+    lumo: f64,
+    overlap: f64,
+    singlets: Vec<StateInfo>,
+    triplets: Vec<StateInfo>,
+}
+
+fn states_at(
+    mol: &Molecule,
+    coords: &Coordinates,
+    ppp: &PppParams,
+    unit_of: &[usize],
+    n_units: usize,
+    p: &EstimateParams,
+) -> Result<Snapshot, PiError> {
+    let built = build_model(mol, coords, ppp)?;
+    let r = scf(&built.model, &ScfParams::default())?;
+    let x = cis(
+        &built.model,
+        &r,
+        &CisParams {
+            n_roots: p.n_states,
+            ..CisParams::default()
+        },
+    );
+    let site_unit: Vec<usize> = built.site_atom.iter().map(|&a| unit_of[a]).collect();
+    let info = |s: &super::ExcitedState| {
+        let c = characterise(&r, &x, s, &site_unit, n_units);
+        let argmax = |v: &[f64]| {
+            (0..v.len())
+                .max_by(|&i, &j| v[i].total_cmp(&v[j]))
+                .unwrap_or(0)
+        };
+        StateInfo {
+            multiplicity: match s.multiplicity {
+                Multiplicity::Singlet => "singlet",
+                Multiplicity::Triplet => "triplet",
+            },
+            energy_ev: s.energy,
+            osc_strength: s.osc_strength,
+            ct_number: c.ct,
+            label: if c.ct >= p.ct_threshold {
+                "CT"
+            } else if c.ct <= p.le_threshold {
+                "LE"
+            } else {
+                "mixed"
+            },
+            hole_unit: argmax(&c.hole),
+            electron_unit: argmax(&c.electron),
+        }
+    };
+    let (h, l) = (r.nocc.saturating_sub(1), r.nocc);
+    let n = built.model.n_sites();
+    let overlap = if l < n {
+        (0..n)
+            .map(|m| (r.coeffs[(m, h)] * r.coeffs[(m, l)]).abs())
+            .sum()
+    } else {
+        0.0
+    };
+    Ok(Snapshot {
+        homo: r.energies[h],
+        lumo: if l < n { r.energies[l] } else { f64::NAN },
+        overlap,
+        singlets: x.singlets.iter().map(info).collect(),
+        triplets: x.triplets.iter().map(info).collect(),
+    })
+}
+
+fn twisted(
+    mol: &Molecule,
+    base: &Coordinates,
+    links: &[(usize, usize)],
+    twists: &[f64],
+) -> Coordinates {
+    let mut c = base.clone();
+    for (&(a, b), &t) in links.iter().zip(twists) {
+        rotate_about_bond(mol, &mut c.points, a, b, t.to_radians());
+    }
+    c
+}
+
+/// Estimate the excited states of `mol` (see the module documentation).
+pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<Estimate, PiError> {
+    let ls = links(mol);
+    let unit_of = units(mol, &ls);
+    let n_units = unit_of.iter().max().map_or(0, |m| m + 1);
+    // Units and their roles.
+    let mut units: Vec<UnitInfo> = (0..n_units)
+        .map(|u| {
+            let atoms: Vec<usize> = (0..mol.atom_count()).filter(|&a| unit_of[a] == u).collect();
+            let um = unit_molecule(mol, &atoms);
+            let (homo, lumo) = build_model(&um, &layout(&um), ppp)
+                .and_then(|b| scf(&b.model, &ScfParams::default()))
+                .map(|r| {
+                    let l = r.nocc.min(r.energies.len() - 1);
+                    (r.energies[r.nocc.saturating_sub(1)], r.energies[l])
+                })
+                .unwrap_or((f64::NAN, f64::NAN));
+            UnitInfo {
+                atoms,
+                role: String::new(),
+                homo_ev: homo,
+                lumo_ev: lumo,
+            }
+        })
+        .collect();
+    let best = |key: &dyn Fn(&UnitInfo) -> f64| {
+        (0..units.len())
+            .filter(|&u| key(&units[u]).is_finite())
+            .max_by(|&a, &b| key(&units[a]).total_cmp(&key(&units[b])))
+    };
+    let donor = best(&|u: &UnitInfo| u.homo_ev);
+    let acceptor = best(&|u: &UnitInfo| -u.lumo_ev);
+    for (i, u) in units.iter_mut().enumerate() {
+        u.role = match (Some(i) == donor, Some(i) == acceptor) {
+            (true, true) => "donor+acceptor",
+            (true, false) => "donor",
+            (false, true) => "acceptor",
+            _ => "bridge/other",
+        }
+        .to_string();
+    }
+    // Torsion of each link.
+    let tp = TorsionParams {
+        conjugation_scale: ppp.torsion.conjugation_scale,
+        steric_scale: ppp.torsion.steric_scale,
+        temperature_k: p.temperature_k,
+    };
+    let steps = (180.0 / p.scan_step_deg).round() as usize;
+    let grid: Vec<f64> = (0..=steps).map(|k| k as f64 * p.scan_step_deg).collect();
+    let mut link_info = Vec::new();
+    for &(a, b) in &ls {
+        if let Some(t) = p.twist_deg {
+            link_info.push(LinkInfo {
+                atoms: (a, b),
+                equilibrium_deg: t,
+                scan: vec![(t, 0.0, 1.0)],
+            });
+        } else {
+            let raw = raw_scan(mol, (a, b), &grid, ppp)?;
+            let prof = profile(&raw, &tp);
+            link_info.push(LinkInfo {
+                atoms: (a, b),
+                equilibrium_deg: prof.equilibrium_deg,
+                scan: prof
+                    .points
+                    .iter()
+                    .map(|q| (q.theta_deg, q.e_total, q.weight))
+                    .collect(),
+            });
+        }
+    }
+    let eq: Vec<f64> = link_info.iter().map(|l| l.equilibrium_deg).collect();
+    let base = layout(mol);
+    let at_eq = states_at(
+        mol,
+        &twisted(mol, &base, &ls, &eq),
+        ppp,
+        &unit_of,
+        n_units,
+        p,
+    )?;
+    let s1 = at_eq.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
+    let t1 = at_eq.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
+    let f1 = at_eq.singlets.first().map_or(f64::NAN, |s| s.osc_strength);
+    // Averages.
+    let (mut as1, mut at1, mut adest, mut af) = (s1, t1, s1 - t1, f1);
+    if p.twist_deg.is_none() && !ls.is_empty() {
+        let (mut ss, mut tt, mut dd, mut ff) = (0.0, 0.0, 0.0, 0.0);
+        for (k, li) in link_info.iter().enumerate() {
+            for &(theta, _, w) in &li.scan {
+                if w < 1e-6 {
+                    continue;
+                }
+                let mut tw = eq.clone();
+                tw[k] = theta;
+                let snap = states_at(
+                    mol,
+                    &twisted(mol, &base, &ls, &tw),
+                    ppp,
+                    &unit_of,
+                    n_units,
+                    p,
+                )?;
+                let (s, t, f) = (
+                    snap.singlets[0].energy_ev,
+                    snap.triplets[0].energy_ev,
+                    snap.singlets[0].osc_strength,
+                );
+                let wl = w / ls.len() as f64;
+                ss += wl * s;
+                tt += wl * t;
+                dd += wl * (s - t);
+                ff += wl * f;
+            }
+        }
+        // Weights below the cut-off are dropped: renormalise.
+        let wsum: f64 = link_info
+            .iter()
+            .flat_map(|l| l.scan.iter().map(|q| q.2).filter(|&w| w >= 1e-6))
+            .sum::<f64>()
+            / ls.len() as f64;
+        as1 = ss / wsum;
+        at1 = tt / wsum;
+        adest = dd / wsum;
+        af = ff / wsum;
+    }
+    Ok(Estimate {
+        units,
+        links: link_info,
+        twists_deg: eq,
+        homo_ev: at_eq.homo,
+        lumo_ev: at_eq.lumo,
+        homo_lumo_overlap: at_eq.overlap,
+        s1_ev: s1,
+        t1_ev: t1,
+        delta_est_ev: s1 - t1,
+        f_s1: f1,
+        singlets: at_eq.singlets,
+        triplets: at_eq.triplets,
+        avg_s1_ev: as1,
+        avg_t1_ev: at1,
+        avg_delta_est_ev: adest,
+        avg_f_s1: af,
+        parameters: ppp.name.clone(),
+    })
+}
