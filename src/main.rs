@@ -158,6 +158,21 @@ fn run(
         Progress::Lines
     };
     match campaign::run(&wf, &RunOptions { shard, progress }) {
+        Ok(s) if !wf.stages.iter().any(|x| x == "enumerate") => {
+            if let Some(e) = &s.estimate {
+                eprintln!(
+                    "estimate: {} chunks ({} in this shard, {} already done, {} written); {} candidates estimated, {} failed (reasons stored) in {:.1} s",
+                    e.chunks_total,
+                    e.chunks_this_shard,
+                    e.chunks_skipped_done,
+                    e.chunks_written,
+                    e.candidates_ok,
+                    e.candidates_failed,
+                    e.elapsed_s
+                );
+            }
+            ExitCode::SUCCESS
+        }
         Ok(s) => {
             let c = &s.counts;
             eprintln!(
@@ -180,6 +195,18 @@ fn run(
                 s.tuples_written,
                 s.elapsed_s
             );
+            if let Some(e) = &s.estimate {
+                eprintln!(
+                    "estimate: {} chunks ({} in this shard, {} already done, {} written); {} candidates estimated, {} failed (reasons stored) in {:.1} s",
+                    e.chunks_total,
+                    e.chunks_this_shard,
+                    e.chunks_skipped_done,
+                    e.chunks_written,
+                    e.candidates_ok,
+                    e.candidates_failed,
+                    e.elapsed_s
+                );
+            }
             eprintln!(
                 "store {}: {} candidates from {} tuples ({} duplicates by identity)",
                 wf.store.display(),

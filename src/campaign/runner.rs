@@ -77,9 +77,24 @@ pub struct RunOptions {
     pub progress: Progress,
 }
 
+/// What the estimate stage did.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct EstimateSummary {
+    pub chunks_total: u64,
+    pub chunks_this_shard: u64,
+    pub chunks_skipped_done: u64,
+    pub chunks_written: u64,
+    pub candidates_ok: u64,
+    /// Candidates whose estimate failed (not parameterised, SCF not converged…), each stored
+    /// with its reason.
+    pub candidates_failed: u64,
+    pub elapsed_s: f64,
+}
+
 /// What a run did.
 #[derive(Debug, Clone, Default, Serialize)]
 pub struct RunSummary {
+    pub estimate: Option<EstimateSummary>,
     pub counts: Counts,
     /// Admitted tuples after sampling / the candidate cap.
     pub selected: u64,
@@ -112,6 +127,15 @@ pub fn run(wf: &Workflow, opts: &RunOptions) -> Result<RunSummary, CampaignError
         && wf.stages.iter().any(|s| s == "enumerate")
     {
         summary = run_enumerate(wf, stage, &lib, opts)?;
+    }
+    if let Some(stage) = &wf.estimate
+        && wf.stages.iter().any(|s| s == "estimate")
+    {
+        summary.estimate = Some(run_estimate(wf, stage, opts)?);
+        let store = Store::open_existing(&wf.store)?;
+        let (c, t) = store.totals()?;
+        summary.store_candidates = c;
+        summary.store_tuples = t;
     }
     Ok(summary)
 }
@@ -229,7 +253,7 @@ fn run_enumerate(
         Ok((store, chunks, rows))
     });
 
-    let progress = Reporter::new(opts.progress, todo);
+    let progress = Reporter::new("enumerate", opts.progress, todo);
     let mut ordinal = 0u64; // among admitted tuples
     let mut selected_idx = 0u64; // among selected tuples
     let mut pending: Vec<Tuple> = Vec::with_capacity(wf.chunk_size);
@@ -283,6 +307,7 @@ fn run_enumerate(
     }
     let (store_candidates, store_tuples) = store.totals()?;
     Ok(RunSummary {
+        estimate: None,
         counts,
         selected,
         chunks_total,
@@ -317,6 +342,7 @@ fn build_row(lib: &Library, t: &Tuple) -> TupleRow {
 
 /// Progress display owned by the driver.
 struct Reporter {
+    label: &'static str,
     mode: Progress,
     bar: Option<indicatif::ProgressBar>,
     total: u64,
@@ -326,18 +352,19 @@ struct Reporter {
 }
 
 impl Reporter {
-    fn new(mode: Progress, total: u64) -> Reporter {
+    fn new(label: &'static str, mode: Progress, total: u64) -> Reporter {
         let bar = (mode == Progress::Bar).then(|| {
             let b = indicatif::ProgressBar::new(total);
             b.set_style(
-                indicatif::ProgressStyle::with_template(
-                    "enumerate {bar:40} {pos}/{len} chunks  {per_sec}  ETA {eta}",
-                )
+                indicatif::ProgressStyle::with_template(&format!(
+                    "{label} {{bar:40}} {{pos}}/{{len}} chunks  {{per_sec}}  ETA {{eta}}"
+                ))
                 .expect("valid template"),
             );
             b
         });
         Reporter {
+            label,
             mode,
             bar,
             total,
@@ -362,8 +389,8 @@ impl Reporter {
                     let rate = d as f64 / self.start.elapsed().as_secs_f64().max(1e-9);
                     let eta = (self.total.saturating_sub(d)) as f64 / rate.max(1e-9);
                     eprintln!(
-                        "enumerate: {d}/{} chunks, {rate:.1} chunks/s, ETA {eta:.0} s",
-                        self.total
+                        "{}: {d}/{} chunks, {rate:.1} chunks/s, ETA {eta:.0} s",
+                        self.label, self.total
                     );
                 }
             }
@@ -376,4 +403,129 @@ impl Reporter {
             b.finish_and_clear();
         }
     }
+}
+
+/// The π-tier estimate of every candidate in the store, chunk by chunk (resumable, shardable),
+/// results keyed by (candidate, "estimate", parameter hash).
+fn run_estimate(
+    wf: &Workflow,
+    stage: &super::workflow::EstimateStage,
+    opts: &RunOptions,
+) -> Result<EstimateSummary, CampaignError> {
+    use crate::pi::estimate::{EstimateParams, estimate};
+    use crate::pi::params::{DEFAULT_PARAMS, PppParams};
+    let started = Instant::now();
+    let params_text = match &stage.params {
+        None => DEFAULT_PARAMS.to_string(),
+        Some(p) => std::fs::read_to_string(p).map_err(|e| CampaignError::Workflow {
+            path: wf.path.clone(),
+            message: format!("estimate.params {}: {e}", p.display()),
+        })?,
+    };
+    let ppp = PppParams::parse(&params_text).map_err(|e| CampaignError::Workflow {
+        path: wf.path.clone(),
+        message: format!("estimate.params: {e}"),
+    })?;
+    #[derive(Serialize)]
+    struct Key<'a> {
+        stage: &'static str,
+        settings: &'a super::workflow::EstimateStage,
+        ppp: String,
+        chunk_size: usize,
+        result_version: u32,
+    }
+    let key = serde_json::to_string(&Key {
+        stage: "estimate",
+        settings: stage,
+        ppp: blake3::hash(params_text.as_bytes()).to_hex()[..16].to_string(),
+        chunk_size: wf.chunk_size,
+        result_version: 1,
+    })
+    .expect("serialisable");
+    let param_hash = blake3::hash(key.as_bytes()).to_hex()[..16].to_string();
+    let mut store = Store::open_existing(&wf.store)?;
+    let shard_label = opts
+        .shard
+        .map(|s| s.to_string())
+        .unwrap_or_else(|| "1/1".into());
+    store.record_run(&wf.path, &wf.text, &key, &shard_label)?;
+    let size = wf.chunk_size as u64;
+    let chunks_total = store.max_seq()?.div_ceil(size);
+    store.set_stage_status("estimate", &param_hash, chunks_total, "{}")?;
+    let done = store.done_chunks("estimate", &param_hash)?;
+    let owned = |c: u64| opts.shard.is_none_or(|s| s.owns(c));
+    let mine: Vec<u64> = (0..chunks_total).filter(|&c| owned(c)).collect();
+    let todo: Vec<u64> = mine.iter().copied().filter(|c| !done.contains(c)).collect();
+    let ep = EstimateParams {
+        temperature_k: stage.temperature_k,
+        twist_deg: stage.twist_deg,
+        scan_step_deg: stage.scan_step_deg,
+        n_states: stage.n_states,
+        ..EstimateParams::default()
+    };
+    let progress = Reporter::new("estimate", opts.progress, todo.len() as u64);
+    let (mut ok, mut failed, mut written) = (0u64, 0u64, 0u64);
+    for &c in &todo {
+        // Candidates are numbered from 1.
+        let rows = store.candidates_in(1 + c * size, 1 + (c + 1) * size)?;
+        let results: Vec<(String, String, bool)> = rows
+            .par_iter()
+            .map(|(id, smiles)| {
+                let out = crate::chem::parse_smiles(smiles)
+                    .map_err(|e| format!("SMILES: {e}"))
+                    .and_then(|m| estimate(&m, &ppp, &ep).map_err(|e| e.to_string()));
+                match out {
+                    Ok(est) => (id.clone(), estimate_record(&est), true),
+                    Err(e) => (
+                        id.clone(),
+                        serde_json::json!({ "version": 1, "error": e }).to_string(),
+                        false,
+                    ),
+                }
+            })
+            .collect();
+        ok += results.iter().filter(|r| r.2).count() as u64;
+        failed += results.iter().filter(|r| !r.2).count() as u64;
+        let pairs: Vec<(String, String)> = results.into_iter().map(|(a, b, _)| (a, b)).collect();
+        store.write_results("estimate", &param_hash, c, &pairs)?;
+        written += 1;
+        progress.tick();
+    }
+    progress.finish();
+    Ok(EstimateSummary {
+        chunks_total,
+        chunks_this_shard: mine.len() as u64,
+        chunks_skipped_done: (mine.len() - todo.len()) as u64,
+        chunks_written: written,
+        candidates_ok: ok,
+        candidates_failed: failed,
+        elapsed_s: started.elapsed().as_secs_f64(),
+    })
+}
+
+/// The stored record of one estimate (version 1; field names carry units).
+fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
+    let s1 = e.singlets.first();
+    let t1 = e.triplets.first();
+    serde_json::json!({
+        "version": 1,
+        "s1_ev": e.s1_ev,
+        "t1_ev": e.t1_ev,
+        "delta_est_ev": e.delta_est_ev,
+        "osc_strength": e.f_s1,
+        "avg_s1_ev": e.avg_s1_ev,
+        "avg_t1_ev": e.avg_t1_ev,
+        "avg_delta_est_ev": e.avg_delta_est_ev,
+        "avg_osc_strength": e.avg_f_s1,
+        "homo_ev": e.homo_ev,
+        "lumo_ev": e.lumo_ev,
+        "homo_lumo_overlap": e.homo_lumo_overlap,
+        "twists_deg": e.twists_deg,
+        "s1_label": s1.map(|s| s.label),
+        "s1_ct_number": s1.map(|s| s.ct_number),
+        "t1_label": t1.map(|s| s.label),
+        "t1_ct_number": t1.map(|s| s.ct_number),
+        "flags": ["uncalibrated"],
+    })
+    .to_string()
 }

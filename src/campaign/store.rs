@@ -383,6 +383,62 @@ impl Store {
         Ok(())
     }
 
+    /// Largest candidate sequence number (0 for an empty store).
+    pub fn max_seq(&self) -> Result<u64, CampaignError> {
+        let v: Option<i64> = self
+            .conn
+            .query_row("SELECT max(seq) FROM candidates", [], |r| r.get(0))
+            .map_err(CampaignError::sqlite(&self.path))?;
+        Ok(v.unwrap_or(0) as u64)
+    }
+
+    /// Candidates (id, canonical SMILES) with `lo <= seq < hi`, in seq order.
+    pub fn candidates_in(&self, lo: u64, hi: u64) -> Result<Vec<(String, String)>, CampaignError> {
+        let sq = CampaignError::sqlite(&self.path);
+        let mut st = self
+            .conn
+            .prepare_cached(
+                "SELECT id, canonical_smiles FROM candidates WHERE seq >= ?1 AND seq < ?2 ORDER BY seq",
+            )
+            .map_err(&sq)?;
+        let rows = st
+            .query_map(params![lo as i64, hi as i64], |r| {
+                Ok((r.get(0)?, r.get(1)?))
+            })
+            .map_err(&sq)?;
+        rows.collect::<Result<Vec<_>, _>>().map_err(&sq)
+    }
+
+    /// Write per-candidate results of a stage and the chunk's done-mark in one transaction.
+    pub fn write_results(
+        &mut self,
+        stage: &str,
+        param_hash: &str,
+        chunk: u64,
+        rows: &[(String, String)],
+    ) -> Result<(), CampaignError> {
+        let path = self.path.clone();
+        let sq = CampaignError::sqlite(&path);
+        let tx = self.conn.transaction().map_err(&sq)?;
+        {
+            let mut st = tx
+                .prepare_cached(
+                    "INSERT OR REPLACE INTO results(candidate_id, stage, param_hash, data) VALUES (?1, ?2, ?3, ?4)",
+                )
+                .map_err(&sq)?;
+            for (id, data) in rows {
+                st.execute(params![id, stage, param_hash, data])
+                    .map_err(&sq)?;
+            }
+            tx.execute(
+                "INSERT OR REPLACE INTO stage_chunks(stage, param_hash, chunk, n_tuples) VALUES (?1, ?2, ?3, ?4)",
+                params![stage, param_hash, chunk as i64, rows.len() as i64],
+            )
+            .map_err(&sq)?;
+        }
+        tx.commit().map_err(&sq)
+    }
+
     /// (distinct candidates, tuples) in the store.
     pub fn totals(&self) -> Result<(u64, u64), CampaignError> {
         let sq = CampaignError::sqlite(&self.path);

@@ -26,6 +26,14 @@
 //! exclude = []
 //! [enumerate.acceptors]
 //! [enumerate.bridges]
+//!
+//!
+//! [estimate]                        # π-tier estimate of every candidate in the store
+//! temperature_k = 300.0             # Boltzmann distribution over twists
+//! # twist_deg = 60.0                # fix every link instead of the torsion model
+//! scan_step_deg = 15.0              # torsion scan step (divides 180)
+//! n_states = 6                      # states per multiplicity
+//! # params = "my-ppp.toml"          # PPP parameter file (default: the shipped set)
 //! ```
 //!
 //! Unknown keys are rejected with the line where they stand.
@@ -44,6 +52,44 @@ struct RawWorkflow {
     campaign: RawCampaign,
     #[serde(default)]
     enumerate: Option<RawEnumerate>,
+    #[serde(default)]
+    estimate: Option<RawEstimate>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawEstimate {
+    #[serde(default = "default_temperature")]
+    temperature_k: f64,
+    #[serde(default)]
+    twist_deg: Option<f64>,
+    #[serde(default = "default_step")]
+    scan_step_deg: f64,
+    #[serde(default = "default_states")]
+    n_states: usize,
+    #[serde(default)]
+    params: Option<PathBuf>,
+}
+
+fn default_temperature() -> f64 {
+    300.0
+}
+fn default_step() -> f64 {
+    15.0
+}
+fn default_states() -> usize {
+    6
+}
+
+/// Settings of the π-tier estimate stage, resolved (defaults visible in the workflow docs).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EstimateStage {
+    pub temperature_k: f64,
+    pub twist_deg: Option<f64>,
+    pub scan_step_deg: f64,
+    pub n_states: usize,
+    /// A parameter file; None = the shipped set.
+    pub params: Option<PathBuf>,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -145,10 +191,11 @@ pub struct Workflow {
     pub stages: Vec<String>,
     pub chunk_size: usize,
     pub enumerate: Option<EnumerateStage>,
+    pub estimate: Option<EstimateStage>,
 }
 
 /// Stages this version runs.
-pub const KNOWN_STAGES: &[&str] = &["enumerate"];
+pub const KNOWN_STAGES: &[&str] = &["enumerate", "estimate"];
 
 impl Workflow {
     pub fn load(path: &Path) -> Result<Workflow, CampaignError> {
@@ -260,6 +307,43 @@ impl Workflow {
                 })
             }
         };
+        let estimate = match raw.estimate {
+            None => {
+                if raw.campaign.stages.iter().any(|s| s == "estimate") {
+                    Some(EstimateStage {
+                        temperature_k: 300.0,
+                        twist_deg: None,
+                        scan_step_deg: 15.0,
+                        n_states: 6,
+                        params: None,
+                    })
+                } else {
+                    None
+                }
+            }
+            Some(e) => {
+                if e.temperature_k.is_nan() || e.temperature_k <= 0.0 {
+                    return Err(err("estimate.temperature_k must be positive (K)".into()));
+                }
+                if !(1.0..=90.0).contains(&e.scan_step_deg)
+                    || (180.0 % e.scan_step_deg).abs() > 1e-9
+                {
+                    return Err(err(
+                        "estimate.scan_step_deg must divide 180 and lie in 1..=90".into(),
+                    ));
+                }
+                if e.n_states == 0 {
+                    return Err(err("estimate.n_states must be at least 1".into()));
+                }
+                Some(EstimateStage {
+                    temperature_k: e.temperature_k,
+                    twist_deg: e.twist_deg,
+                    scan_step_deg: e.scan_step_deg,
+                    n_states: e.n_states,
+                    params: e.params.map(|p| resolve(&p)),
+                })
+            }
+        };
         Ok(Workflow {
             path: path.to_path_buf(),
             text: text.to_string(),
@@ -269,6 +353,7 @@ impl Workflow {
             stages: raw.campaign.stages,
             chunk_size: raw.campaign.chunk_size,
             enumerate,
+            estimate,
         })
     }
 }

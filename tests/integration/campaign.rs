@@ -500,3 +500,76 @@ fn the_demo_workflow_runs() {
     assert!(tuples.len() >= cands.len());
     assert!(!chunks.is_empty());
 }
+
+#[test]
+fn estimate_stage_stores_results_and_resumes() {
+    let d = temp_dir("estimate");
+    let wf = d.join("wf.toml");
+    std::fs::write(
+        &wf,
+        format!(
+            r#"[campaign]
+name = "estimate-test"
+store = "store.sqlite"
+fragments = ["{frag}"]
+stages = ["enumerate", "estimate"]
+chunk_size = 2
+
+[enumerate]
+architectures = ["D-A"]
+[enumerate.donors]
+include = ["carbazol-9-yl", "diphenylamino"]
+[enumerate.acceptors]
+include = ["4-cyanophenyl", "pyridin-4-yl"]
+
+[estimate]
+twist_deg = 60.0
+n_states = 4
+"#,
+            frag = repo().join("fragments").display()
+        ),
+    )
+    .unwrap();
+    let out = run(&wf, &[]);
+    let log = String::from_utf8_lossy(&out.stderr);
+    assert!(log.contains("4 candidates estimated, 0 failed"), "{log}");
+    let c = Connection::open_with_flags(d.join("store.sqlite"), OpenFlags::SQLITE_OPEN_READ_ONLY)
+        .unwrap();
+    let rows: Vec<String> = {
+        let mut st = c
+            .prepare("SELECT data FROM results WHERE stage = 'estimate' ORDER BY candidate_id")
+            .unwrap();
+        st.query_map([], |r| r.get(0))
+            .unwrap()
+            .map(|x| x.unwrap())
+            .collect()
+    };
+    assert_eq!(rows.len(), 4);
+    for r in &rows {
+        let v: serde_json::Value = serde_json::from_str(r).unwrap();
+        let (s1, t1) = (v["s1_ev"].as_f64().unwrap(), v["t1_ev"].as_f64().unwrap());
+        assert!(s1 > t1 && t1 > 0.0, "{r}");
+        // Every link (single bond between ring systems) sits at the fixed twist; a
+        // diphenylamino donor's N–aryl bonds are not ring-to-ring links (documented limit).
+        for t in v["twists_deg"].as_array().unwrap() {
+            assert_eq!(t.as_f64().unwrap(), 60.0);
+        }
+        assert_eq!(v["flags"][0], "uncalibrated");
+    }
+    // Running again does nothing new; other parameters add rows, never overwrite.
+    let out = run(&wf, &[]);
+    assert!(String::from_utf8_lossy(&out.stderr).contains("2 already done, 0 written"));
+    let text = std::fs::read_to_string(&wf)
+        .unwrap()
+        .replace("twist_deg = 60.0", "twist_deg = 80.0");
+    std::fs::write(&wf, text).unwrap();
+    run(&wf, &[]);
+    let n: i64 = c
+        .query_row(
+            "SELECT count(*) FROM results WHERE stage = 'estimate'",
+            [],
+            |r| r.get(0),
+        )
+        .unwrap();
+    assert_eq!(n, 8, "a second parameter set adds rows");
+}
