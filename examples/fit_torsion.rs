@@ -2,21 +2,12 @@
 //! 44.4° and barriers 7.88 kJ/mol (0°) and 8.94 kJ/mol (90°) (science.md b; CCSD(T) best
 //! estimates), then report the other calibration molecules (N-phenylcarbazole, ortho-methyl
 //! series). `cargo run --release --example fit_torsion`
-use lumisift::chem::{Molecule, parse_smiles, rings};
+use lumisift::chem::parse_smiles;
 use lumisift::pi::params::PppParams;
 use lumisift::pi::torsion::{TorsionParams, profile, raw_scan};
 
-fn link(mol: &Molecule) -> (usize, usize) {
-    let ring = rings::ring_bonds(mol);
-    let ra = rings::ring_atoms(mol, &ring);
-    mol.graph
-        .edge_indices()
-        .filter(|e| !ring[e.index()])
-        .find_map(|e| {
-            let (a, b) = mol.graph.edge_endpoints(e).unwrap();
-            (ra[a.index()] && ra[b.index()]).then_some((a.index(), b.index()))
-        })
-        .expect("a link bond")
+fn link(mol: &lumisift::chem::Molecule) -> (usize, usize) {
+    lumisift::pi::estimate::links(mol)[0]
 }
 
 fn main() {

@@ -9,21 +9,9 @@
 
 use std::io::Write;
 
-use lumisift::chem::{AtomIdx, Molecule, parse_smiles, rings};
+use lumisift::chem::{AtomIdx, parse_smiles};
 use lumisift::geometry::{layout, rotate_about_bond, with_hydrogens, xyz_block};
-
-fn links(mol: &Molecule) -> Vec<(usize, usize)> {
-    let ring = rings::ring_bonds(mol);
-    let ring_atoms = rings::ring_atoms(mol, &ring);
-    mol.graph
-        .edge_indices()
-        .filter(|e| !ring[e.index()])
-        .filter_map(|e| {
-            let (a, b) = mol.graph.edge_endpoints(e).unwrap();
-            (ring_atoms[a.index()] && ring_atoms[b.index()]).then_some((a.index(), b.index()))
-        })
-        .collect()
-}
+use lumisift::pi::estimate::links;
 
 fn main() {
     let args: Vec<String> = std::env::args().collect();

@@ -159,18 +159,7 @@ fn run(
     };
     match campaign::run(&wf, &RunOptions { shard, progress }) {
         Ok(s) if !wf.stages.iter().any(|x| x == "enumerate") => {
-            if let Some(e) = &s.estimate {
-                eprintln!(
-                    "estimate: {} chunks ({} in this shard, {} already done, {} written); {} candidates estimated, {} failed (reasons stored) in {:.1} s",
-                    e.chunks_total,
-                    e.chunks_this_shard,
-                    e.chunks_skipped_done,
-                    e.chunks_written,
-                    e.candidates_ok,
-                    e.candidates_failed,
-                    e.elapsed_s
-                );
-            }
+            print_estimate_summary(&s);
             ExitCode::SUCCESS
         }
         Ok(s) => {
@@ -195,18 +184,7 @@ fn run(
                 s.tuples_written,
                 s.elapsed_s
             );
-            if let Some(e) = &s.estimate {
-                eprintln!(
-                    "estimate: {} chunks ({} in this shard, {} already done, {} written); {} candidates estimated, {} failed (reasons stored) in {:.1} s",
-                    e.chunks_total,
-                    e.chunks_this_shard,
-                    e.chunks_skipped_done,
-                    e.chunks_written,
-                    e.candidates_ok,
-                    e.candidates_failed,
-                    e.elapsed_s
-                );
-            }
+            print_estimate_summary(&s);
             eprintln!(
                 "store {}: {} candidates from {} tuples ({} duplicates by identity)",
                 wf.store.display(),
@@ -217,6 +195,21 @@ fn run(
             ExitCode::SUCCESS
         }
         Err(e) => fail(e),
+    }
+}
+
+fn print_estimate_summary(s: &campaign::RunSummary) {
+    if let Some(e) = &s.estimate {
+        eprintln!(
+            "estimate: {} chunks ({} in this shard, {} already done, {} written); {} candidates estimated, {} failed (reasons stored) in {:.1} s",
+            e.chunks_total,
+            e.chunks_this_shard,
+            e.chunks_skipped_done,
+            e.chunks_written,
+            e.candidates_ok,
+            e.candidates_failed,
+            e.elapsed_s
+        );
     }
 }
 

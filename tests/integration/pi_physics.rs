@@ -5,54 +5,13 @@
 //! acceptor decouples the two, so both fall as the twist goes from 0° to 90°, and under ZDO both
 //! vanish at exactly 90° for a single twisted bond.
 
-use lumisift::chem::{AtomIdx, Molecule, parse_smiles};
+use lumisift::chem::parse_smiles;
 use lumisift::geometry::{layout, rotate_about_bond};
 use lumisift::pi::analysis::characterise;
 use lumisift::pi::build::build_model;
+use lumisift::pi::estimate::{links, units};
 use lumisift::pi::params::PppParams;
 use lumisift::pi::{CisParams, cis, scf};
-
-/// The single, non-ring bonds between two ring atoms (the links between units), as (a, b).
-fn links(mol: &Molecule) -> Vec<(usize, usize)> {
-    let ring = lumisift::chem::rings::ring_bonds(mol);
-    let ring_atoms = lumisift::chem::rings::ring_atoms(mol, &ring);
-    mol.graph
-        .edge_indices()
-        .filter(|e| !ring[e.index()])
-        .filter_map(|e| {
-            let (a, b) = mol.graph.edge_endpoints(e).unwrap();
-            (ring_atoms[a.index()] && ring_atoms[b.index()]).then_some((a.index(), b.index()))
-        })
-        .collect()
-}
-
-/// Unit index of every atom: connected pieces after cutting the links.
-fn units(mol: &Molecule, links: &[(usize, usize)]) -> (Vec<usize>, usize) {
-    let n = mol.atom_count();
-    let mut unit = vec![usize::MAX; n];
-    let mut count = 0;
-    for s in 0..n {
-        if unit[s] != usize::MAX {
-            continue;
-        }
-        let mut stack = vec![s];
-        unit[s] = count;
-        while let Some(x) = stack.pop() {
-            for (y, _) in mol.neighbours(AtomIdx::new(x)) {
-                let y = y.index();
-                let cut = links
-                    .iter()
-                    .any(|&(a, b)| (a == x && b == y) || (a == y && b == x));
-                if !cut && unit[y] == usize::MAX {
-                    unit[y] = count;
-                    stack.push(y);
-                }
-            }
-        }
-        count += 1;
-    }
-    (unit, count)
-}
 
 struct Point {
     /// 2K of the HOMO → LUMO configuration: its singlet–triplet splitting.
@@ -81,7 +40,8 @@ fn scan_point(smiles: &str, twist_deg: f64) -> Point {
             twist_deg.to_radians()
         ));
     }
-    let (unit_of, n_units) = units(&mol, &l);
+    let unit_of = units(&mol, &l);
+    let n_units = unit_of.iter().max().unwrap() + 1;
     let params = PppParams::default_set();
     let built = build_model(&mol, &c, &params).unwrap();
     let site_unit: Vec<usize> = built.site_atom.iter().map(|&a| unit_of[a]).collect();

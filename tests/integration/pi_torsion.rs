@@ -5,21 +5,12 @@
 //! ortho-methyl groups push the twist towards 70–90°. Tolerances below state how close this
 //! first model comes; the misses are documented in the parameter file.
 
-use lumisift::chem::{Molecule, parse_smiles, rings};
+use lumisift::chem::parse_smiles;
 use lumisift::pi::params::PppParams;
 use lumisift::pi::torsion::{TorsionParams, TorsionProfile, profile, raw_scan};
 
-fn link(mol: &Molecule) -> (usize, usize) {
-    let ring = rings::ring_bonds(mol);
-    let ra = rings::ring_atoms(mol, &ring);
-    mol.graph
-        .edge_indices()
-        .filter(|e| !ring[e.index()])
-        .find_map(|e| {
-            let (a, b) = mol.graph.edge_endpoints(e).unwrap();
-            (ra[a.index()] && ra[b.index()]).then_some((a.index(), b.index()))
-        })
-        .unwrap()
+fn link(mol: &lumisift::chem::Molecule) -> (usize, usize) {
+    lumisift::pi::estimate::links(mol)[0]
 }
 
 fn angles() -> Vec<f64> {
