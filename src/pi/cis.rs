@@ -206,10 +206,12 @@ pub fn lowest_eigenpairs(a: DMatrix<f64>, k: usize) -> (DVector<f64>, DMatrix<f6
         })
         .collect();
     let max_basis = (block * 10).min(n);
+    // A·v for every basis vector, kept so each iteration multiplies only the new vectors.
+    let mut a_basis: Vec<DVector<f64>> = basis.iter().map(|b| &a * b).collect();
     for _ in 0..200 {
         let m = basis.len();
         let v = DMatrix::from_columns(&basis);
-        let av = &a * &v;
+        let av = DMatrix::from_columns(&a_basis);
         let h = v.transpose() * &av;
         let (theta, s) = sorted_eigen(h);
         let x = &v * &s;
@@ -254,12 +256,16 @@ pub fn lowest_eigenpairs(a: DMatrix<f64>, k: usize) -> (DVector<f64>, DMatrix<f6
             }
             return (vals, vecs);
         }
-        // Restart when the basis grows too large: keep the Ritz vectors.
+        // Restart when the basis grows too large: keep the Ritz vectors (and their A·x).
         if m + new_vecs.len() > max_basis {
             basis = (0..block.min(m))
                 .map(|j| x.column(j).into_owned())
                 .collect();
+            a_basis = (0..block.min(m))
+                .map(|j| ax.column(j).into_owned())
+                .collect();
         }
+        let before = basis.len();
         for t in new_vecs {
             let n0 = t.norm();
             if n0 == 0.0 || !n0.is_finite() {
@@ -274,10 +280,12 @@ pub fn lowest_eigenpairs(a: DMatrix<f64>, k: usize) -> (DVector<f64>, DMatrix<f6
             }
             let nt = t.norm();
             if nt > 1e-4 {
-                basis.push(t / nt);
+                let t = t / nt;
+                a_basis.push(&a * &t);
+                basis.push(t);
             }
         }
-        if basis.len() == m && m >= block {
+        if basis.len() == before {
             // No new direction: cannot improve further.
             break;
         }
