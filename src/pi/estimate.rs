@@ -352,6 +352,11 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     let (mut as1, mut at1, mut adest, mut af) = (s1, t1, s1 - t1, f1);
     if p.twist_deg.is_none() && !ls.is_empty() {
         let (mut ss, mut tt, mut dd, mut ff) = (0.0, 0.0, 0.0, 0.0);
+        // Only S1 and T1 enter the averages: one root per multiplicity.
+        let p1 = EstimateParams {
+            n_states: 1,
+            ..p.clone()
+        };
         for (k, li) in link_info.iter().enumerate() {
             for &(theta, _, w) in &li.scan {
                 if w < 1e-6 {
@@ -365,7 +370,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                     ppp,
                     &unit_of,
                     n_units,
-                    p,
+                    &p1,
                 )?;
                 let (s, t, f) = (
                     snap.singlets[0].energy_ev,
