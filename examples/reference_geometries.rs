@@ -9,7 +9,7 @@
 
 use std::io::Write;
 
-use lumisift::chem::{AtomIdx, parse_smiles};
+use lumisift::chem::parse_smiles;
 use lumisift::geometry::{layout, rotate_about_bond, with_hydrogens, xyz_block};
 use lumisift::pi::estimate::links;
 
@@ -71,7 +71,6 @@ fn main() {
             let mut file = std::fs::File::create(&path).expect("writable file");
             file.write_all(xyz_block(&mh, &ch, &comment).as_bytes())
                 .unwrap();
-            let _ = mh.atom(AtomIdx::new(0));
         }
     }
 }

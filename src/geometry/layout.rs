@@ -621,7 +621,8 @@ pub fn with_hydrogens(mol: &Molecule, coords: &Coordinates) -> (Molecule, Coordi
             6 => 1.08,
             7 => 1.01,
             8 => 0.97,
-            _ => 1.1 + 0.0 * z as f64,
+            // Other X–H: sum of covalent radii, rounded (Cordero et al. 2008, from memory).
+            _ => 1.1,
         };
         for d in dirs.into_iter().take(h) {
             let hidx = m.add_atom(crate::chem::Atom::new(1));

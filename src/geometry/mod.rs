@@ -21,7 +21,7 @@ pub use writers::{sdf_block, xyz_block};
 /// A 3D point in Å.
 pub type Point = [f64; 3];
 
-pub(crate) fn sub(a: Point, b: Point) -> Point {
+pub fn sub(a: Point, b: Point) -> Point {
     [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
 }
 
@@ -50,7 +50,7 @@ pub(crate) fn unit(a: Point) -> Point {
     }
 }
 
-pub(crate) fn cross(a: Point, b: Point) -> Point {
+pub fn cross(a: Point, b: Point) -> Point {
     [
         a[1] * b[2] - a[2] * b[1],
         a[2] * b[0] - a[0] * b[2],

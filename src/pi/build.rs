@@ -5,7 +5,7 @@
 //! β(θ) = β₀ cos θ across twisted inter-unit bonds (science.md a.1), and planar units keep β₀.
 
 use crate::chem::{AtomIdx, Molecule};
-use crate::geometry::{Coordinates, Point};
+use crate::geometry::{Coordinates, Point, cross, sub};
 
 use super::params::PppParams;
 use super::typing::{PiSite, perceive, unparameterised};
@@ -17,18 +17,6 @@ pub struct BuiltModel {
     pub model: PppModel,
     /// `site_atom[s]` is the atom index of site s.
     pub site_atom: Vec<usize>,
-}
-
-fn sub(a: Point, b: Point) -> Point {
-    [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
-}
-
-fn cross(a: Point, b: Point) -> Point {
-    [
-        a[1] * b[2] - a[2] * b[1],
-        a[2] * b[0] - a[0] * b[2],
-        a[0] * b[1] - a[1] * b[0],
-    ]
 }
 
 fn unit(a: Point) -> Option<Point> {

@@ -141,7 +141,7 @@ pub fn scf(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
         } else {
             f
         };
-        let (eps, c) = sorted_eigen(f_use);
+        let (_, c) = sorted_eigen(f_use);
         let p_new = density(&c, nocc);
         let dp = (&p_new - &p).amax();
         let de = (e - e_old).abs();
@@ -153,7 +153,6 @@ pub fn scf(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
             let f = fock(&h, &gamma, &p);
             let e_elec = 0.5 * p.component_mul(&(&h + &f)).sum();
             let (eps_f, c_f) = sorted_eigen(f);
-            let _ = eps;
             return Ok(ScfResult {
                 energies: eps_f,
                 density: density(&c_f, nocc),

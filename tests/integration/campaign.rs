@@ -381,41 +381,39 @@ fn bad_workflows_and_stores_are_refused_without_damage() {
         &["run", wf.to_str().unwrap()],
         &[&wf.display().to_string(), "line 10", "max_molweight"],
     );
-    // Unknown architecture and unknown fragment id.
-    let wf = d.join("arch.toml");
-    std::fs::write(
-        &wf,
-        format!(
-            "[campaign]\nname = \"x\"\nstore = \"s.sqlite\"\nfragments = [\"{}\"]\n[enumerate]\narchitectures = [\"D-X\"]\n",
-            repo().join("fragments").display()
-        ),
-    )
-    .unwrap();
+    // Unknown architecture, unknown fragment id, missing fragment folder, missing workflow.
+    let small = |name: &str, frags: &str, enumerate: &str| {
+        let p = d.join(name);
+        std::fs::write(
+            &p,
+            format!(
+                "[campaign]\nname = \"x\"\nstore = \"s.sqlite\"\nfragments = [\"{frags}\"]\n[enumerate]\n{enumerate}"
+            ),
+        )
+        .unwrap();
+        p
+    };
+    let shipped = repo().join("fragments").display().to_string();
+    let wf = small("arch.toml", &shipped, "architectures = [\"D-X\"]\n");
     expect_error(
         &["run", wf.to_str().unwrap()],
         &["unknown architecture 'D-X'"],
     );
-    let wf2 = d.join("id.toml");
-    std::fs::write(
-        &wf2,
-        format!(
-            "[campaign]\nname = \"x\"\nstore = \"s.sqlite\"\nfragments = [\"{}\"]\n[enumerate]\narchitectures = [\"D-A\"]\n[enumerate.donors]\ninclude = [\"no-such-donor\"]\n",
-            repo().join("fragments").display()
-        ),
-    )
-    .unwrap();
+    let wf2 = small(
+        "id.toml",
+        &shipped,
+        "architectures = [\"D-A\"]\n[enumerate.donors]\ninclude = [\"no-such-donor\"]\n",
+    );
     expect_error(
         &["run", wf2.to_str().unwrap()],
         &["unknown fragment id 'no-such-donor'"],
     );
-    // Missing workflow and missing fragment folder.
     expect_error(&["run", "/nonexistent/wf.toml"], &["/nonexistent/wf.toml"]);
-    let wf3 = d.join("nofrag.toml");
-    std::fs::write(
-        &wf3,
-        "[campaign]\nname = \"x\"\nstore = \"s.sqlite\"\nfragments = [\"/nonexistent/frags\"]\n[enumerate]\narchitectures = [\"D-A\"]\n",
-    )
-    .unwrap();
+    let wf3 = small(
+        "nofrag.toml",
+        "/nonexistent/frags",
+        "architectures = [\"D-A\"]\n",
+    );
     expect_error(&["run", wf3.to_str().unwrap()], &["/nonexistent/frags"]);
 
     // A corrupt file and a foreign SQLite database as the store: refused, bytes unchanged.
