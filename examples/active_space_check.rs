@@ -42,6 +42,7 @@ fn main() {
                 n_roots: 4,
                 n_occ: Some(12),
                 n_vir: Some(12),
+                ..Default::default()
             },
         );
         let ta = t1.elapsed();

@@ -21,6 +21,10 @@ pub struct CisParams {
     pub n_vir: Option<usize>,
     /// States kept per multiplicity.
     pub n_roots: usize,
+    /// Corrections (both zero = plain CIS).
+    pub corrections: Corrections,
+    /// Unit of every site (needed by the charge-transfer stabilisation; None = one unit).
+    pub site_unit: Option<Vec<usize>>,
 }
 
 impl Default for CisParams {
@@ -29,8 +33,30 @@ impl Default for CisParams {
             n_occ: None,
             n_vir: None,
             n_roots: 10,
+            corrections: Corrections::default(),
+            site_unit: None,
         }
     }
+}
+
+/// Two corrections to plain PPP-CIS, both acting inside the CI matrix so that local and
+/// charge-transfer configurations still mix (see `data/ppp-params.toml` for the fitted values).
+///
+/// - Triplet exchange restoration λ: triplets get A_T = A_T(CIS) + 2λ(ia|jb). The added matrix
+///   is the exchange coupling whose diagonal 2λK_ia is large where hole and electron share
+///   sites (local excitations) and vanishes for charge transfer (K_ia → 0), so it raises local
+///   triplets (too low by 1–1.5 eV in Mataga–Nishimoto CIS, science.md a.6) and leaves
+///   charge-transfer triplets where they are. λ = 1 would make triplets equal to singlets;
+///   the singlet–triplet splitting of a local state becomes 2(1 − λ)K.
+/// - Charge-transfer stabilisation Δ_CT (eV): every configuration i→a gets −Δ_CT·τ_ia on the
+///   diagonal of both multiplicities, where τ_ia = 1 − Σ_u P_i(u) P_a(u) is the probability that
+///   hole and electron sit on different units (P_i(u) = Σ_{μ∈u} C_μi²). It stands for the
+///   screening of the electron–hole pair that a bare π model lacks (host polarisation, and the
+///   uncertainty of the repulsion formula at 4–8 Å).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Corrections {
+    pub triplet_exchange: f64,
+    pub ct_stabilisation_ev: f64,
 }
 
 /// One excited state.
@@ -107,6 +133,27 @@ pub fn cis(model: &PppModel, scf: &ScfResult, params: &CisParams) -> CisResult {
     }
     let ijab = o.transpose() * (g * &v);
     let eps = &scf.energies;
+    // Charge-transfer probability τ_ia of every configuration (zero without units).
+    let mut tau = vec![0.0; dim];
+    let cor = params.corrections;
+    if let (Some(su), true) = (&params.site_unit, cor.ct_stabilisation_ev != 0.0) {
+        let nu = su.iter().max().map_or(0, |m| m + 1);
+        let pop = |p: usize| {
+            let mut v = vec![0.0; nu];
+            for mu in 0..n {
+                v[su[mu]] += c[(mu, p)] * c[(mu, p)];
+            }
+            v
+        };
+        let pv: Vec<Vec<f64>> = vir.iter().map(|&a| pop(a)).collect();
+        for (ii, &i) in occ.iter().enumerate() {
+            let pi = pop(i);
+            for (aa, pa) in pv.iter().enumerate() {
+                let same: f64 = pi.iter().zip(pa).map(|(x, y)| x * y).sum();
+                tau[ii * nv + aa] = (1.0 - same).clamp(0.0, 1.0);
+            }
+        }
+    }
     let mut a_s = DMatrix::zeros(dim, dim);
     let mut a_t = DMatrix::zeros(dim, dim);
     for ii in 0..no {
@@ -116,10 +163,11 @@ pub fn cis(model: &PppModel, scf: &ScfResult, params: &CisParams) -> CisResult {
                 for bb in 0..nv {
                     let s = jj * nv + bb;
                     let k = ijab[(ii * no + jj, aa * nv + bb)];
-                    let mut ts = 2.0 * iajb[(r, s)] - k;
-                    let mut tt = -k;
+                    let x = iajb[(r, s)];
+                    let mut ts = 2.0 * x - k;
+                    let mut tt = 2.0 * cor.triplet_exchange * x - k;
                     if r == s {
-                        let d = eps[vir[aa]] - eps[occ[ii]];
+                        let d = eps[vir[aa]] - eps[occ[ii]] - cor.ct_stabilisation_ev * tau[r];
                         ts += d;
                         tt += d;
                     }

@@ -22,7 +22,8 @@ use super::analysis::characterise;
 use super::build::build_model;
 use super::params::PppParams;
 use super::torsion::{TorsionParams, profile, raw_scan};
-use super::{CisParams, Multiplicity, PiError, ScfParams, cis, scf};
+use super::typing::{PiSite, perceive};
+use super::{CisParams, Corrections, Multiplicity, PiError, ScfParams, cis, scf};
 
 /// Settings of an estimate.
 #[derive(Debug, Clone, PartialEq)]
@@ -65,6 +66,10 @@ pub struct UnitInfo {
     pub role: String,
     pub homo_ev: f64,
     pub lumo_ev: f64,
+    /// Lowest singlet and triplet of the unit on its own (capped with hydrogen, planar layout,
+    /// corrected CIS): the local excitations the molecule's states are compared with.
+    pub local_s1_ev: f64,
+    pub local_t1_ev: f64,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -109,7 +114,52 @@ pub struct Estimate {
     pub avg_t1_ev: f64,
     pub avg_delta_est_ev: f64,
     pub avg_f_s1: f64,
+    /// Plain PPP-CIS at the equilibrium twists, without the corrections (for comparison).
+    pub raw_s1_ev: f64,
+    pub raw_t1_ev: f64,
+    pub raw_delta_est_ev: f64,
+    /// Lowest triplet labelled LE among the computed triplets, the unit it sits on, and its
+    /// gap below S1 (S1 − ³LE; positive when the local triplet lies below S1).
+    pub lowest_3le_ev: Option<f64>,
+    pub lowest_3le_unit: Option<usize>,
+    pub s1_minus_3le_ev: Option<f64>,
+    /// S1 − local T1 of the donor and of the acceptor unit (isolated units).
+    pub s1_minus_donor_t1_ev: Option<f64>,
+    pub s1_minus_acceptor_t1_ev: Option<f64>,
+    /// Quantities that missed the parameter set's validation bar: not to be ranked on.
+    pub unvalidated: Vec<String>,
+    /// Warnings a chemist should read (n→π* blind spot, perpendicular links, ...).
+    pub flags: Vec<String>,
     pub parameters: String,
+}
+
+/// Lowest singlet and triplet (eV) of a small molecule with corrected CIS, or NaN.
+fn local_states(m: &Molecule, ppp: &PppParams) -> (f64, f64, f64, f64) {
+    let r = build_model(m, &layout(m), ppp).and_then(|b| {
+        let r = scf(&b.model, &ScfParams::default())?;
+        let x = cis(
+            &b.model,
+            &r,
+            &CisParams {
+                n_roots: 1,
+                corrections: ppp.corrections,
+                ..CisParams::default()
+            },
+        );
+        Ok((r, x))
+    });
+    match r {
+        Ok((r, x)) => {
+            let l = r.nocc.min(r.energies.len() - 1);
+            (
+                r.energies[r.nocc.saturating_sub(1)],
+                r.energies[l],
+                x.singlets.first().map_or(f64::NAN, |s| s.energy),
+                x.triplets.first().map_or(f64::NAN, |s| s.energy),
+            )
+        }
+        Err(_) => (f64::NAN, f64::NAN, f64::NAN, f64::NAN),
+    }
 }
 
 /// Links: single non-ring bonds between two ring atoms.
@@ -187,6 +237,7 @@ struct Snapshot {
     triplets: Vec<StateInfo>,
 }
 
+#[allow(clippy::too_many_arguments)]
 fn states_at(
     mol: &Molecule,
     coords: &Coordinates,
@@ -194,9 +245,11 @@ fn states_at(
     unit_of: &[usize],
     n_units: usize,
     p: &EstimateParams,
+    corrected: bool,
 ) -> Result<Snapshot, PiError> {
     let built = build_model(mol, coords, ppp)?;
     let r = scf(&built.model, &ScfParams::default())?;
+    let site_unit: Vec<usize> = built.site_atom.iter().map(|&a| unit_of[a]).collect();
     let x = cis(
         &built.model,
         &r,
@@ -204,9 +257,14 @@ fn states_at(
             n_roots: p.n_states,
             n_occ: p.active_occ,
             n_vir: p.active_vir,
+            corrections: if corrected {
+                ppp.corrections
+            } else {
+                Corrections::default()
+            },
+            site_unit: Some(site_unit.clone()),
         },
     );
-    let site_unit: Vec<usize> = built.site_atom.iter().map(|&a| unit_of[a]).collect();
     let info = |s: &super::ExcitedState| {
         let c = characterise(&r, &x, s, &site_unit, n_units);
         let argmax = |v: &[f64]| {
@@ -274,18 +332,14 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         .map(|u| {
             let atoms: Vec<usize> = (0..mol.atom_count()).filter(|&a| unit_of[a] == u).collect();
             let um = unit_molecule(mol, &atoms);
-            let (homo, lumo) = build_model(&um, &layout(&um), ppp)
-                .and_then(|b| scf(&b.model, &ScfParams::default()))
-                .map(|r| {
-                    let l = r.nocc.min(r.energies.len() - 1);
-                    (r.energies[r.nocc.saturating_sub(1)], r.energies[l])
-                })
-                .unwrap_or((f64::NAN, f64::NAN));
+            let (homo, lumo, ls1, lt1) = local_states(&um, ppp);
             UnitInfo {
                 atoms,
                 role: String::new(),
                 homo_ev: homo,
                 lumo_ev: lumo,
+                local_s1_ev: ls1,
+                local_t1_ev: lt1,
             }
         })
         .collect();
@@ -344,6 +398,19 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         &unit_of,
         n_units,
         p,
+        true,
+    )?;
+    let raw = states_at(
+        mol,
+        &twisted(mol, &base, &ls, &eq),
+        ppp,
+        &unit_of,
+        n_units,
+        &EstimateParams {
+            n_states: 1,
+            ..p.clone()
+        },
+        false,
     )?;
     let s1 = at_eq.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
     let t1 = at_eq.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
@@ -371,6 +438,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                     &unit_of,
                     n_units,
                     &p1,
+                    true,
                 )?;
                 let (s, t, f) = (
                     snap.singlets[0].energy_ev,
@@ -395,7 +463,27 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         adest = dd / wsum;
         af = ff / wsum;
     }
+    let raw_s1 = raw.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
+    let raw_t1 = raw.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
+    let le3 = at_eq.triplets.iter().find(|t| t.label == "LE");
+    let unit_t1 = |u: Option<usize>| u.map(|u| units[u].local_t1_ev).filter(|x| x.is_finite());
+    let flags = estimate_flags(mol, &units, &link_info);
     Ok(Estimate {
+        raw_s1_ev: raw_s1,
+        raw_t1_ev: raw_t1,
+        raw_delta_est_ev: raw_s1 - raw_t1,
+        lowest_3le_ev: le3.map(|t| t.energy_ev),
+        lowest_3le_unit: le3.map(|t| t.hole_unit),
+        s1_minus_3le_ev: le3.map(|t| s1 - t.energy_ev),
+        s1_minus_donor_t1_ev: unit_t1(donor).map(|t| s1 - t),
+        s1_minus_acceptor_t1_ev: unit_t1(acceptor).map(|t| s1 - t),
+        unvalidated: ppp
+            .validation
+            .failed()
+            .iter()
+            .map(|s| s.to_string())
+            .collect(),
+        flags,
         units,
         links: link_info,
         twists_deg: eq,
@@ -414,4 +502,46 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         avg_f_s1: af,
         parameters: ppp.name.clone(),
     })
+}
+
+/// Warnings on what the π model cannot see or where it is exact for the wrong reason.
+fn estimate_flags(mol: &Molecule, units: &[UnitInfo], links: &[LinkInfo]) -> Vec<String> {
+    let mut flags = Vec::new();
+    // n→π*: aromatic aza N and carbonyl/thione heteroatoms carry in-plane lone pairs whose
+    // n→π* states lie near or below the lowest π→π* state in azines and ketones.
+    let typing = perceive(mol);
+    for (u, unit) in units.iter().enumerate() {
+        let lone: Vec<usize> = unit
+            .atoms
+            .iter()
+            .copied()
+            .filter(|&a| match typing.sites[a] {
+                PiSite::Site("N1") => mol.atom(crate::chem::AtomIdx::new(a)).aromatic,
+                PiSite::Site("O1") | PiSite::Site("S1") => true,
+                _ => false,
+            })
+            .collect();
+        if !lone.is_empty() {
+            flags.push(format!(
+                "n-pi*: unit {u} ({}) has in-plane lone pairs (atoms {}); n->pi* states are not \
+                 modelled and may lie below the pi->pi* S1/T1",
+                unit.role,
+                lone.iter()
+                    .map(|a| a.to_string())
+                    .collect::<Vec<_>>()
+                    .join(",")
+            ));
+        }
+    }
+    for l in links {
+        if (l.equilibrium_deg - 90.0).abs() < 1.0 {
+            flags.push(format!(
+                "perpendicular link {}-{}: under zero differential overlap the coupling across \
+                 it vanishes, so dEST and f of a pure charge-transfer state are exactly 0 here \
+                 (real molecules keep small nonzero values)",
+                l.atoms.0, l.atoms.1
+            ));
+        }
+    }
+    flags
 }

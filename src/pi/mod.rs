@@ -34,7 +34,9 @@ mod scf;
 pub mod torsion;
 pub mod typing;
 
-pub use cis::{CisParams, CisResult, ExcitedState, Multiplicity, cis, lowest_eigenpairs};
+pub use cis::{
+    CisParams, CisResult, Corrections, ExcitedState, Multiplicity, cis, lowest_eigenpairs,
+};
 pub use scf::{ScfInfo, ScfParams, ScfResult, scf};
 
 use thiserror::Error;

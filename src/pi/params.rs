@@ -21,6 +21,71 @@ struct RawParams {
     bond: Vec<RawBond>,
     inductive: Inductive,
     torsion: TorsionScales,
+    corrections: RawCorrections,
+    #[serde(default)]
+    validation: Validation,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCorrections {
+    triplet_exchange: f64,
+    ct_stabilisation_ev: f64,
+}
+
+/// How this parameter set did against the reference set: mean absolute errors (eV) and the
+/// acceptance bar. A quantity whose error is above the bar is flagged in every estimate and
+/// not ranked on. A user file without this table is unvalidated: everything is flagged.
+#[derive(Debug, Clone, PartialEq, Deserialize, serde::Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct Validation {
+    pub reference: String,
+    pub bar_ev: f64,
+    pub s1_mae_ev: Option<f64>,
+    pub t1_mae_ev: Option<f64>,
+    pub fragment_t1_mae_ev: Option<f64>,
+    pub delta_est_mae_ev: Option<f64>,
+    /// Share of donor–acceptor molecules whose T1 character (CT/LE) agrees with the reference.
+    pub t1_character_agreement: Option<f64>,
+    pub character_bar: f64,
+}
+
+impl Default for Validation {
+    fn default() -> Self {
+        Validation {
+            reference: "none (user parameter file without a [validation] table)".into(),
+            bar_ev: 0.3,
+            s1_mae_ev: None,
+            t1_mae_ev: None,
+            fragment_t1_mae_ev: None,
+            delta_est_mae_ev: None,
+            t1_character_agreement: None,
+            character_bar: 0.8,
+        }
+    }
+}
+
+impl Validation {
+    /// Quantities that missed their bar (or were never validated).
+    pub fn failed(&self) -> Vec<&'static str> {
+        let miss = |v: Option<f64>| v.is_none_or(|x| x > self.bar_ev);
+        let mut out = Vec::new();
+        if miss(self.s1_mae_ev) {
+            out.push("S1");
+        }
+        if miss(self.t1_mae_ev)
+            || miss(self.fragment_t1_mae_ev)
+            || self
+                .t1_character_agreement
+                .is_none_or(|x| x < self.character_bar)
+        {
+            out.push("T1");
+        }
+        if miss(self.delta_est_mae_ev) || out.contains(&"S1") || out.contains(&"T1") {
+            out.push("dEST");
+        }
+        out
+    }
 }
 
 /// The two fitted scales of the torsion model (see `pi::torsion`).
@@ -77,6 +142,8 @@ pub struct PppParams {
     pub bond_k: BTreeMap<(String, String), f64>,
     pub inductive: Inductive,
     pub torsion: TorsionScales,
+    pub corrections: super::Corrections,
+    pub validation: Validation,
 }
 
 impl PppParams {
@@ -126,6 +193,13 @@ impl PppParams {
                 return Err(format!("site '{}' defined twice", s.kind));
             }
         }
+        if !(0.0..1.0).contains(&raw.corrections.triplet_exchange)
+            || !raw.corrections.ct_stabilisation_ev.is_finite()
+        {
+            return Err(
+                "[corrections]: triplet_exchange in [0, 1), ct_stabilisation_ev finite".into(),
+            );
+        }
         let mut bond_k = BTreeMap::new();
         for b in raw.bond {
             for t in [&b.types.0, &b.types.1] {
@@ -143,6 +217,11 @@ impl PppParams {
             bond_k,
             inductive: raw.inductive,
             torsion: raw.torsion,
+            corrections: super::Corrections {
+                triplet_exchange: raw.corrections.triplet_exchange,
+                ct_stabilisation_ev: raw.corrections.ct_stabilisation_ev,
+            },
+            validation: raw.validation,
         })
     }
 

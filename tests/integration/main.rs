@@ -11,6 +11,7 @@ mod fingerprints;
 mod geometry;
 mod handbook;
 mod invalid_smiles;
+mod pi_corrections;
 mod pi_engine;
 mod pi_physics;
 mod pi_torsion;
