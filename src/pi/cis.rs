@@ -83,7 +83,9 @@ pub struct CisResult {
     pub vir: Vec<usize>,
 }
 
-/// Solve CIS for singlets and triplets by full diagonalisation in the active space.
+/// Solve CIS for singlets and triplets in the active space: full diagonalisation of the CI
+/// matrix up to [`DAVIDSON_MIN_DIM`] configurations, above it Davidson iteration on a direct
+/// σ-vector built from γ (no CI matrix, O(n³) per vector).
 pub fn cis(model: &PppModel, scf: &ScfResult, params: &CisParams) -> CisResult {
     let n = model.n_sites();
     let nocc = scf.nocc;
@@ -103,88 +105,105 @@ pub fn cis(model: &PppModel, scf: &ScfResult, params: &CisParams) -> CisResult {
             vir,
         };
     }
-    // Transition densities on sites: Q_μ,(ia) = C_μi C_μa; (ia|jb) = Qᵀ γ Q.
-    let mut q = DMatrix::zeros(n, dim);
-    for (ii, &i) in occ.iter().enumerate() {
-        for (aa, &a) in vir.iter().enumerate() {
-            for mu in 0..n {
-                q[(mu, ii * nv + aa)] = c[(mu, i)] * c[(mu, a)];
-            }
-        }
-    }
-    let gq = g * &q;
-    let iajb = q.transpose() * &gq;
-    // (ij|ab) = Oᵀ γ V with O_μ,(ij) = C_μi C_μj and V_μ,(ab) = C_μa C_μb.
-    let mut o = DMatrix::zeros(n, no * no);
-    for (ii, &i) in occ.iter().enumerate() {
-        for (jj, &j) in occ.iter().enumerate() {
-            for mu in 0..n {
-                o[(mu, ii * no + jj)] = c[(mu, i)] * c[(mu, j)];
-            }
-        }
-    }
-    let mut v = DMatrix::zeros(n, nv * nv);
-    for (aa, &a) in vir.iter().enumerate() {
-        for (bb, &b) in vir.iter().enumerate() {
-            for mu in 0..n {
-                v[(mu, aa * nv + bb)] = c[(mu, a)] * c[(mu, b)];
-            }
-        }
-    }
-    let ijab = o.transpose() * (g * &v);
+    let co = c.columns(nocc - no, no).into_owned();
+    let cv = c.columns(nocc, nv).into_owned();
     let eps = &scf.energies;
-    // Charge-transfer probability τ_ia of every configuration (zero without units).
-    let mut tau = vec![0.0; dim];
     let cor = params.corrections;
-    if let (Some(su), true) = (&params.site_unit, cor.ct_stabilisation_ev != 0.0) {
-        let nu = su.iter().max().map_or(0, |m| m + 1);
-        let pop = |p: usize| {
-            let mut v = vec![0.0; nu];
-            for mu in 0..n {
-                v[su[mu]] += c[(mu, p)] * c[(mu, p)];
-            }
-            v
-        };
-        let pv: Vec<Vec<f64>> = vir.iter().map(|&a| pop(a)).collect();
-        for (ii, &i) in occ.iter().enumerate() {
-            let pi = pop(i);
-            for (aa, pa) in pv.iter().enumerate() {
-                let same: f64 = pi.iter().zip(pa).map(|(x, y)| x * y).sum();
-                tau[ii * nv + aa] = (1.0 - same).clamp(0.0, 1.0);
-            }
-        }
-    }
-    let mut a_s = DMatrix::zeros(dim, dim);
-    let mut a_t = DMatrix::zeros(dim, dim);
+    // Orbital-energy differences with the charge-transfer stabilisation −Δ_CT·τ_ia, where τ_ia
+    // is the probability that hole and electron sit on different units (zero without units).
+    let mut de = DVector::zeros(dim);
+    let unit_pop = params
+        .site_unit
+        .as_ref()
+        .filter(|_| cor.ct_stabilisation_ev != 0.0)
+        .map(|su| {
+            let nu = su.iter().max().map_or(0, |m| m + 1);
+            let pop = |m: &DMatrix<f64>| {
+                let mut p = DMatrix::zeros(nu, m.ncols());
+                for k in 0..m.ncols() {
+                    for mu in 0..n {
+                        p[(su[mu], k)] += m[(mu, k)] * m[(mu, k)];
+                    }
+                }
+                p
+            };
+            (pop(&co), pop(&cv))
+        });
     for ii in 0..no {
         for aa in 0..nv {
-            let r = ii * nv + aa;
-            for jj in 0..no {
-                for bb in 0..nv {
-                    let s = jj * nv + bb;
-                    let k = ijab[(ii * no + jj, aa * nv + bb)];
-                    let x = iajb[(r, s)];
-                    let mut ts = 2.0 * x - k;
-                    let mut tt = 2.0 * cor.triplet_exchange * x - k;
-                    if r == s {
-                        let d = eps[vir[aa]] - eps[occ[ii]] - cor.ct_stabilisation_ev * tau[r];
-                        ts += d;
-                        tt += d;
-                    }
-                    a_s[(r, s)] = ts;
-                    a_t[(r, s)] = tt;
-                }
+            let mut d = eps[vir[aa]] - eps[occ[ii]];
+            if let Some((po, pv)) = &unit_pop {
+                let same: f64 = po.column(ii).dot(&pv.column(aa));
+                d -= cor.ct_stabilisation_ev * (1.0 - same).clamp(0.0, 1.0);
             }
+            de[ii * nv + aa] = d;
         }
     }
     let roots = params.n_roots.min(dim);
-    let states = |a: DMatrix<f64>, mult: Multiplicity| -> Vec<ExcitedState> {
-        let (vals, vecs) = lowest_eigenpairs(a, roots);
-        (0..roots)
+    let coulomb = [
+        (Multiplicity::Singlet, 2.0),
+        (Multiplicity::Triplet, 2.0 * cor.triplet_exchange),
+    ];
+    let solved: Vec<(Multiplicity, DVector<f64>, DMatrix<f64>)> = if dim <= DAVIDSON_MIN_DIM
+        || roots * 4 >= dim
+    {
+        let (iajb, ijab) = dense_integrals(&co, &cv, g);
+        coulomb
+            .iter()
+            .map(|&(mult, cj)| {
+                let mut a = DMatrix::zeros(dim, dim);
+                for ii in 0..no {
+                    for aa in 0..nv {
+                        let r = ii * nv + aa;
+                        for jj in 0..no {
+                            for bb in 0..nv {
+                                let s = jj * nv + bb;
+                                a[(r, s)] = cj * iajb[(r, s)] - ijab[(ii * no + jj, aa * nv + bb)];
+                            }
+                        }
+                        a[(r, r)] += de[r];
+                    }
+                }
+                let (vals, vecs) = truncate(sorted_eigen(a), roots);
+                (mult, vals, vecs)
+            })
+            .collect()
+    } else {
+        let op = Sigma {
+            co: &co,
+            cv: &cv,
+            gamma: g,
+            de: &de,
+        };
+        let (j_diag, k_diag) = op.diagonal_integrals();
+        coulomb
+            .iter()
+            .map(|&(mult, cj)| {
+                let diag: Vec<f64> = (0..dim)
+                    .map(|r| de[r] + cj * j_diag[r] - k_diag[r])
+                    .collect();
+                let (vals, vecs) =
+                    davidson(|x| op.apply(x, cj), &diag, roots).unwrap_or_else(|| {
+                        let mut a = op.apply(&DMatrix::identity(dim, dim), cj);
+                        a = (&a + a.transpose()) * 0.5;
+                        truncate(sorted_eigen(a), roots)
+                    });
+                (mult, vals, vecs)
+            })
+            .collect()
+    };
+    let mut out = CisResult {
+        singlets: Vec::new(),
+        triplets: Vec::new(),
+        occ,
+        vir,
+    };
+    for (mult, vals, vecs) in solved {
+        let states: Vec<ExcitedState> = (0..vals.len())
             .map(|k| {
                 let x = vecs.column(k).into_owned();
                 let (dip, f) = if mult == Multiplicity::Singlet {
-                    transition(model, &q, &x, vals[k])
+                    transition(model, &co, &cv, &x, vals[k])
                 } else {
                     ([0.0; 3], 0.0)
                 };
@@ -196,25 +215,117 @@ pub fn cis(model: &PppModel, scf: &ScfResult, params: &CisParams) -> CisResult {
                     amplitudes: x,
                 }
             })
-            .collect()
-    };
-    CisResult {
-        singlets: states(a_s, Multiplicity::Singlet),
-        triplets: states(a_t, Multiplicity::Triplet),
-        occ,
-        vir,
+            .collect();
+        match mult {
+            Multiplicity::Singlet => out.singlets = states,
+            Multiplicity::Triplet => out.triplets = states,
+        }
+    }
+    out
+}
+
+/// (ia|jb) (dim × dim) and (ij|ab) (no² × nv²) for the dense CI matrix.
+fn dense_integrals(
+    co: &DMatrix<f64>,
+    cv: &DMatrix<f64>,
+    g: &DMatrix<f64>,
+) -> (DMatrix<f64>, DMatrix<f64>) {
+    let (n, no, nv) = (co.nrows(), co.ncols(), cv.ncols());
+    // Q_μ,(ia) = C_μi C_μa; (ia|jb) = Qᵀ γ Q.
+    let q = pair_products(co, cv);
+    let iajb = q.transpose() * (g * &q);
+    // (ij|ab) = Oᵀ γ V with O_μ,(ij) = C_μi C_μj and V_μ,(ab) = C_μa C_μb.
+    let o = pair_products(co, co);
+    let v = pair_products(cv, cv);
+    debug_assert_eq!(o.shape(), (n, no * no));
+    debug_assert_eq!(v.shape(), (n, nv * nv));
+    (iajb, o.transpose() * (g * &v))
+}
+
+/// Columns p·m + q = element-wise products of column p of `a` and column q of `b`.
+fn pair_products(a: &DMatrix<f64>, b: &DMatrix<f64>) -> DMatrix<f64> {
+    let (n, na, nb) = (a.nrows(), a.ncols(), b.ncols());
+    let mut q = DMatrix::zeros(n, na * nb);
+    for p in 0..na {
+        for r in 0..nb {
+            let col = a.column(p).component_mul(&b.column(r));
+            q.set_column(p * nb + r, &col);
+        }
+    }
+    q
+}
+
+/// The CIS operator applied without building its matrix. With Y = C_occ X C_virᵀ (X the
+/// amplitudes as an occupied × virtual matrix):
+/// Σ_jb (ia|jb) X_jb = (C_occᵀ diag(γ·diag Y) C_vir)_ia and
+/// Σ_jb (ij|ab) X_jb = (C_occᵀ (γ ∘ Y) C_vir)_ia.
+struct Sigma<'a> {
+    co: &'a DMatrix<f64>,
+    cv: &'a DMatrix<f64>,
+    gamma: &'a DMatrix<f64>,
+    de: &'a DVector<f64>,
+}
+
+impl Sigma<'_> {
+    /// (ia|ia) and (ii|aa) for every configuration (the diagonal, for the preconditioner).
+    fn diagonal_integrals(&self) -> (Vec<f64>, Vec<f64>) {
+        let (no, nv) = (self.co.ncols(), self.cv.ncols());
+        let mut j = vec![0.0; no * nv];
+        for ii in 0..no {
+            let mut qi = self.cv.clone();
+            for (mu, mut row) in qi.row_iter_mut().enumerate() {
+                row *= self.co[(mu, ii)];
+            }
+            let gq = self.gamma * &qi;
+            for aa in 0..nv {
+                j[ii * nv + aa] = qi.column(aa).dot(&gq.column(aa));
+            }
+        }
+        let d_o = self.co.component_mul(self.co);
+        let d_v = self.cv.component_mul(self.cv);
+        let k = d_o.transpose() * self.gamma * d_v;
+        let k_flat = (0..no * nv).map(|r| k[(r / nv, r % nv)]).collect();
+        (j, k_flat)
+    }
+
+    /// The operator (with Coulomb factor `cj`: 2 for singlets, 2λ for triplets) on every
+    /// column of `x`.
+    fn apply(&self, x: &DMatrix<f64>, cj: f64) -> DMatrix<f64> {
+        let (no, nv) = (self.co.ncols(), self.cv.ncols());
+        let mut out = DMatrix::zeros(x.nrows(), x.ncols());
+        for (k, col) in x.column_iter().enumerate() {
+            // Row-major amplitude index i·nv + a → the no × nv matrix X.
+            let xm = DMatrix::from_row_slice(no, nv, col.as_slice());
+            let y = self.co * xm * self.cv.transpose();
+            let gd = self.gamma * y.diagonal();
+            let mut cvg = self.cv.clone();
+            for (mu, mut row) in cvg.row_iter_mut().enumerate() {
+                row *= gd[mu];
+            }
+            let j = self.co.transpose() * cvg;
+            let kx = self.co.transpose() * self.gamma.component_mul(&y) * self.cv;
+            for ii in 0..no {
+                for aa in 0..nv {
+                    let r = ii * nv + aa;
+                    out[(r, k)] = self.de[r] * col[r] + cj * j[(ii, aa)] - kx[(ii, aa)];
+                }
+            }
+        }
+        out
     }
 }
 
 /// Transition dipole (e·Å) and oscillator strength of a singlet with amplitudes `x`.
 fn transition(
     model: &PppModel,
-    q: &DMatrix<f64>,
+    co: &DMatrix<f64>,
+    cv: &DMatrix<f64>,
     x: &DVector<f64>,
     energy: f64,
 ) -> ([f64; 3], f64) {
-    // Transition density on sites ρ_μ = √2 Σ_ia X_ia C_μi C_μa.
-    let rho = q * x * std::f64::consts::SQRT_2;
+    // Transition density on sites ρ_μ = √2 Σ_ia X_ia C_μi C_μa = √2 (C_occ X C_virᵀ)_μμ.
+    let xm = DMatrix::from_row_slice(co.ncols(), cv.ncols(), x.as_slice());
+    let rho = (co * xm * cv.transpose()).diagonal() * std::f64::consts::SQRT_2;
     let mut d = [0.0; 3];
     for (mu, r) in model.positions.iter().enumerate() {
         for k in 0..3 {
@@ -226,122 +337,162 @@ fn transition(
     (d, f)
 }
 
-/// Dimension above which the lowest roots come from Davidson iteration instead of a full
-/// diagonalisation.
-pub const DAVIDSON_MIN_DIM: usize = 300;
+/// Dimension above which the lowest roots come from Davidson iteration on a direct σ-vector
+/// (no CI matrix is built) instead of a full diagonalisation of the dense matrix.
+pub const DAVIDSON_MIN_DIM: usize = 200;
+
+/// Residual norm (eV) at which a Davidson root counts as converged; the eigenvalue error is of
+/// the order of its square.
+const DAVIDSON_TOL: f64 = 1e-5;
 
 /// The `k` lowest eigenpairs of the symmetric matrix `a`, ascending: full diagonalisation for
-/// small matrices, otherwise Davidson's method (J. Comput. Phys. 17, 87 (1975)) with a diagonal
-/// preconditioner, a block of k + 4 vectors started on the lowest diagonal elements (so that
-/// near-degenerate roots are not missed), residual norm below 1e-5 eV (eigenvalue error of order the squared residual), and restarts that keep
-/// the current Ritz vectors. Checked against full diagonalisation in the tests; if it does not
-/// converge in 200 iterations it falls back to the full diagonalisation.
+/// small matrices, otherwise [`davidson`] on the dense matrix (falls back to the full
+/// diagonalisation if it does not converge). Sign convention of the vectors: largest-magnitude
+/// component positive.
 pub fn lowest_eigenpairs(a: DMatrix<f64>, k: usize) -> (DVector<f64>, DMatrix<f64>) {
     let n = a.nrows();
     if n <= DAVIDSON_MIN_DIM || k * 4 >= n {
-        return sorted_eigen(a);
+        return truncate(sorted_eigen(a), k);
     }
-    let block = (k + 4).min(n);
     let diag: Vec<f64> = (0..n).map(|i| a[(i, i)]).collect();
+    davidson(|v| &a * v, &diag, k).unwrap_or_else(|| truncate(sorted_eigen(a), k))
+}
+
+fn truncate((vals, vecs): (DVector<f64>, DMatrix<f64>), k: usize) -> (DVector<f64>, DMatrix<f64>) {
+    let k = k.min(vals.len());
+    (
+        DVector::from_iterator(k, (0..k).map(|j| vals[j])),
+        vecs.columns(0, k).into_owned(),
+    )
+}
+
+/// Block Davidson (J. Comput. Phys. 17, 87 (1975)) for the `k` lowest roots of a symmetric
+/// operator given as `apply` (a block of column vectors in, the operator times each out) and
+/// its diagonal. Diagonal preconditioner; start vectors on the k + 4 lowest diagonal elements,
+/// each with a small fixed pseudo-random admixture so that no symmetry sector is unreachable;
+/// the projected matrix grows by the new vectors only; restart to the current Ritz vectors
+/// when the basis exceeds 8 blocks. Converged when every residual norm is below 1e-5.
+/// `None` when 300 iterations do not converge or no new direction is left.
+pub fn davidson<F>(apply: F, diag: &[f64], k: usize) -> Option<(DVector<f64>, DMatrix<f64>)>
+where
+    F: Fn(&DMatrix<f64>) -> DMatrix<f64>,
+{
+    let n = diag.len();
+    let block = (k + 4).min(n);
+    let max_basis = (block * 8).min(n);
     let mut order: Vec<usize> = (0..n).collect();
     order.sort_by(|&x, &y| diag[x].total_cmp(&diag[y]).then(x.cmp(&y)));
-    let mut basis: Vec<DVector<f64>> = order[..block]
-        .iter()
-        .map(|&i| {
-            let mut v = DVector::zeros(n);
-            v[i] = 1.0;
-            v
-        })
-        .collect();
-    let max_basis = (block * 10).min(n);
-    // A·v for every basis vector, kept so each iteration multiplies only the new vectors.
-    let mut a_basis: Vec<DVector<f64>> = basis.iter().map(|b| &a * b).collect();
-    for _ in 0..200 {
-        let m = basis.len();
-        let v = DMatrix::from_columns(&basis);
-        let av = DMatrix::from_columns(&a_basis);
-        let h = v.transpose() * &av;
-        let (theta, s) = sorted_eigen(h);
-        let x = &v * &s;
-        let ax = &av * &s;
-        let mut new_vecs = Vec::new();
-        let mut converged = true;
-        for j in 0..block.min(m) {
+    // Deterministic admixture (a linear congruential sequence; any fixed vector works).
+    let mut seed: u64 = 0x9e37_79b9_7f4a_7c15;
+    let mut noise = move || {
+        seed = seed
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        ((seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
+    };
+    let mut start = DMatrix::zeros(n, block);
+    for (j, &i) in order[..block].iter().enumerate() {
+        for r in 0..n {
+            start[(r, j)] = 1e-3 * noise();
+        }
+        start[(i, j)] += 1.0;
+    }
+    let mut v = orthonormalise(&DMatrix::zeros(n, 0), start);
+    let mut av = apply(&v);
+    let mut h = v.tr_mul(&av);
+    for _ in 0..300 {
+        let m = v.ncols();
+        let hs = (&h + h.transpose()) * 0.5;
+        let (theta, s) = sorted_eigen(hs);
+        let keep = block.min(m);
+        let sk = s.columns(0, keep);
+        let x = &v * sk;
+        let ax = &av * sk;
+        let mut corr: Vec<DVector<f64>> = Vec::new();
+        for j in 0..k.min(keep) {
             let r = ax.column(j) - x.column(j) * theta[j];
-            if r.norm() > 1e-5 {
-                if j < k {
-                    converged = false;
-                }
+            if r.norm() > DAVIDSON_TOL {
                 let mut t = DVector::zeros(n);
                 for i in 0..n {
                     let d = theta[j] - diag[i];
                     t[i] = r[i]
-                        / if d.abs() < 1e-8 {
-                            1e-8_f64.copysign(d)
+                        / if d.abs() < 1e-6 {
+                            1e-6_f64.copysign(d)
                         } else {
                             d
                         };
                 }
-                // Preconditioned correction, and the plain residual as a fall-back direction.
-                new_vecs.push(t);
-                new_vecs.push(r.into_owned());
+                corr.push(t);
             }
         }
-        if converged {
-            let vals = DVector::from_iterator(k, (0..k).map(|j| theta[j]));
-            let mut vecs = DMatrix::zeros(n, k);
+        if corr.is_empty() {
+            let mut vecs = x.columns(0, k).into_owned();
             for j in 0..k {
-                let mut col = x.column(j).into_owned();
-                // Sign convention as in `sorted_eigen`: largest-magnitude component positive.
-                let big = col.iter().fold(
-                    0.0f64,
-                    |b, &c| if c.abs() > b.abs() + 1e-12 { c } else { b },
-                );
+                let big = vecs.column(j).iter().fold(0.0f64, |b, &c| {
+                    if c.abs() > b.abs() + 1e-12 { c } else { b }
+                });
                 if big < 0.0 {
-                    col *= -1.0;
-                }
-                vecs.set_column(j, &col);
-            }
-            return (vals, vecs);
-        }
-        // Restart when the basis grows too large: keep the Ritz vectors (and their A·x).
-        if m + new_vecs.len() > max_basis {
-            basis = (0..block.min(m))
-                .map(|j| x.column(j).into_owned())
-                .collect();
-            a_basis = (0..block.min(m))
-                .map(|j| ax.column(j).into_owned())
-                .collect();
-        }
-        let before = basis.len();
-        for t in new_vecs {
-            let n0 = t.norm();
-            if n0 == 0.0 || !n0.is_finite() {
-                continue;
-            }
-            let mut t = t / n0;
-            for _ in 0..2 {
-                for b in &basis {
-                    let p = b.dot(&t);
-                    t -= b * p;
+                    vecs.column_mut(j).neg_mut();
                 }
             }
-            let nt = t.norm();
-            if nt > 1e-4 {
-                let t = t / nt;
-                a_basis.push(&a * &t);
-                basis.push(t);
+            return Some((DVector::from_iterator(k, (0..k).map(|j| theta[j])), vecs));
+        }
+        if m + corr.len() > max_basis {
+            v = x;
+            av = ax;
+            h = DMatrix::from_diagonal(&DVector::from_iterator(keep, (0..keep).map(|j| theta[j])));
+        }
+        let new = orthonormalise(&v, DMatrix::from_columns(&corr));
+        if new.ncols() == 0 {
+            return None;
+        }
+        let anew = apply(&new);
+        let m = v.ncols();
+        let p = new.ncols();
+        let top = v.tr_mul(&anew);
+        let corner = new.tr_mul(&anew);
+        let mut h2 = DMatrix::zeros(m + p, m + p);
+        h2.view_mut((0, 0), (m, m)).copy_from(&h);
+        h2.view_mut((0, m), (m, p)).copy_from(&top);
+        h2.view_mut((m, 0), (p, m)).copy_from(&top.transpose());
+        h2.view_mut((m, m), (p, p)).copy_from(&corner);
+        h = h2;
+        v = v.resize_horizontally(m + p, 0.0);
+        v.columns_mut(m, p).copy_from(&new);
+        av = av.resize_horizontally(m + p, 0.0);
+        av.columns_mut(m, p).copy_from(&anew);
+    }
+    None
+}
+
+/// Columns of `new` made orthonormal to `basis` and to each other (two Gram–Schmidt passes);
+/// columns that vanish are dropped.
+fn orthonormalise(basis: &DMatrix<f64>, new: DMatrix<f64>) -> DMatrix<f64> {
+    let mut out: Vec<DVector<f64>> = Vec::new();
+    for col in new.column_iter() {
+        let n0 = col.norm();
+        if n0 == 0.0 || !n0.is_finite() {
+            continue;
+        }
+        let mut t: DVector<f64> = col / n0;
+        for _ in 0..2 {
+            if basis.ncols() > 0 {
+                let proj = basis.tr_mul(&t);
+                t.gemv(-1.0, basis, &proj, 1.0);
+            }
+            for b in &out {
+                let p = b.dot(&t);
+                t -= b * p;
             }
         }
-        if basis.len() == before {
-            // No new direction: cannot improve further.
-            break;
+        let nt = t.norm();
+        if nt > 1e-4 {
+            out.push(t / nt);
         }
     }
-    let (vals, vecs) = sorted_eigen(a);
-    let kk = k.min(vals.len());
-    (
-        DVector::from_iterator(kk, (0..kk).map(|j| vals[j])),
-        vecs.columns(0, kk).into_owned(),
-    )
+    if out.is_empty() {
+        DMatrix::zeros(basis.nrows().max(new.nrows()), 0)
+    } else {
+        DMatrix::from_columns(&out)
+    }
 }

@@ -94,6 +94,21 @@ pub struct StateInfo {
     pub electron_unit: usize,
 }
 
+/// Share of each link's Boltzmann weight covered by the averaging points.
+pub const AVERAGE_WEIGHT_COVERAGE: f64 = 0.99;
+
+/// S1, T1 and f(S1) with one link at `theta_deg`, the others at equilibrium; `weight` is the
+/// renormalised Boltzmann weight of the point within its link.
+#[derive(Debug, Clone, Serialize)]
+pub struct AngleSample {
+    pub link: usize,
+    pub theta_deg: f64,
+    pub weight: f64,
+    pub s1_ev: f64,
+    pub t1_ev: f64,
+    pub f_s1: f64,
+}
+
 #[derive(Debug, Clone, Serialize)]
 pub struct Estimate {
     pub units: Vec<UnitInfo>,
@@ -114,6 +129,9 @@ pub struct Estimate {
     pub avg_t1_ev: f64,
     pub avg_delta_est_ev: f64,
     pub avg_f_s1: f64,
+    /// The per-angle values behind the averages (one link moved, the others at equilibrium),
+    /// for quantities that must be averaged per angle (rates).
+    pub angle_samples: Vec<AngleSample>,
     /// Plain PPP-CIS at the equilibrium twists, without the corrections (for comparison).
     pub raw_s1_ev: f64,
     pub raw_t1_ev: f64,
@@ -230,6 +248,7 @@ fn unit_molecule(mol: &Molecule, atoms: &[usize]) -> Molecule {
 }
 
 struct Snapshot {
+    density: nalgebra::DMatrix<f64>,
     homo: f64,
     lumo: f64,
     overlap: f64,
@@ -246,9 +265,16 @@ fn states_at(
     n_units: usize,
     p: &EstimateParams,
     corrected: bool,
+    initial_density: Option<nalgebra::DMatrix<f64>>,
 ) -> Result<Snapshot, PiError> {
     let built = build_model(mol, coords, ppp)?;
-    let r = scf(&built.model, &ScfParams::default())?;
+    let r = scf(
+        &built.model,
+        &ScfParams {
+            initial_density,
+            ..ScfParams::default()
+        },
+    )?;
     let site_unit: Vec<usize> = built.site_atom.iter().map(|&a| unit_of[a]).collect();
     let x = cis(
         &built.model,
@@ -301,6 +327,7 @@ fn states_at(
         0.0
     };
     Ok(Snapshot {
+        density: r.density.clone(),
         homo: r.energies[h],
         lumo: if l < n { r.energies[l] } else { f64::NAN },
         overlap,
@@ -399,6 +426,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         n_units,
         p,
         true,
+        None,
     )?;
     let raw = states_at(
         mol,
@@ -411,12 +439,16 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
             ..p.clone()
         },
         false,
+        Some(at_eq.density.clone()),
     )?;
     let s1 = at_eq.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
     let t1 = at_eq.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
     let f1 = at_eq.singlets.first().map_or(f64::NAN, |s| s.osc_strength);
-    // Averages.
+    // Averages over the per-link Boltzmann distributions: for each link the grid points that
+    // together carry 99 % of its weight (renormalised), the other links at equilibrium, the SCF
+    // warm-started from the equilibrium density. Per-angle values are kept for rate averages.
     let (mut as1, mut at1, mut adest, mut af) = (s1, t1, s1 - t1, f1);
+    let mut samples = Vec::new();
     if p.twist_deg.is_none() && !ls.is_empty() {
         let (mut ss, mut tt, mut dd, mut ff) = (0.0, 0.0, 0.0, 0.0);
         // Only S1 and T1 enter the averages: one root per multiplicity.
@@ -425,10 +457,19 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
             ..p.clone()
         };
         for (k, li) in link_info.iter().enumerate() {
-            for &(theta, _, w) in &li.scan {
-                if w < 1e-6 {
-                    continue;
+            let mut pts: Vec<(f64, f64)> = li.scan.iter().map(|q| (q.0, q.2)).collect();
+            pts.sort_by(|a, b| b.1.total_cmp(&a.1).then(a.0.total_cmp(&b.0)));
+            let total: f64 = pts.iter().map(|q| q.1).sum();
+            let mut kept = Vec::new();
+            let mut acc = 0.0;
+            for q in pts {
+                if acc >= AVERAGE_WEIGHT_COVERAGE * total {
+                    break;
                 }
+                acc += q.1;
+                kept.push(q);
+            }
+            for (theta, w) in kept {
                 let mut tw = eq.clone();
                 tw[k] = theta;
                 let snap = states_at(
@@ -439,29 +480,32 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                     n_units,
                     &p1,
                     true,
+                    Some(at_eq.density.clone()),
                 )?;
                 let (s, t, f) = (
                     snap.singlets[0].energy_ev,
                     snap.triplets[0].energy_ev,
                     snap.singlets[0].osc_strength,
                 );
-                let wl = w / ls.len() as f64;
+                let wl = w / acc / ls.len() as f64;
                 ss += wl * s;
                 tt += wl * t;
                 dd += wl * (s - t);
                 ff += wl * f;
+                samples.push(AngleSample {
+                    link: k,
+                    theta_deg: theta,
+                    weight: w / acc,
+                    s1_ev: s,
+                    t1_ev: t,
+                    f_s1: f,
+                });
             }
         }
-        // Weights below the cut-off are dropped: renormalise.
-        let wsum: f64 = link_info
-            .iter()
-            .flat_map(|l| l.scan.iter().map(|q| q.2).filter(|&w| w >= 1e-6))
-            .sum::<f64>()
-            / ls.len() as f64;
-        as1 = ss / wsum;
-        at1 = tt / wsum;
-        adest = dd / wsum;
-        af = ff / wsum;
+        as1 = ss;
+        at1 = tt;
+        adest = dd;
+        af = ff;
     }
     let raw_s1 = raw.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
     let raw_t1 = raw.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
@@ -500,6 +544,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         avg_t1_ev: at1,
         avg_delta_est_ev: adest,
         avg_f_s1: af,
+        angle_samples: samples,
         parameters: ppp.name.clone(),
     })
 }

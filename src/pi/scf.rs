@@ -22,8 +22,8 @@ impl Default for ScfParams {
     fn default() -> Self {
         ScfParams {
             max_iter: 200,
-            energy_tol: 1e-10,
-            density_tol: 1e-9,
+            energy_tol: 1e-9,
+            density_tol: 1e-7,
             diis_size: 8,
             initial_density: None,
         }

@@ -47,23 +47,46 @@ pub struct TorsionProfile {
     pub equilibrium_deg: f64,
 }
 
+/// Angles (degrees) at which the π energy is computed when the scan is interpolated.
+const PI_ANCHORS: [f64; 7] = [0.0, 30.0, 60.0, 90.0, 120.0, 150.0, 180.0];
+
 /// Raw (unscaled) π and steric energies along a scan about `link` = (a, b): the side of b
-/// rotates by θ from the planar layout.
+/// rotates by θ from the planar layout. The steric term is computed at every angle; the π term
+/// (one SCF per angle, the cost) only at 0°, 30°, …, 180° when those are on the grid, and in
+/// between by interpolation in x = cos²θ through the four anchors of the same quadrant (cubic
+/// in x; under β ∝ cos θ the π energy is a smooth even function of cos θ, and the interpolation
+/// error is checked against direct SCF in the tests). Other grids are computed point by point.
 pub fn raw_scan(
     mol: &Molecule,
     link: (usize, usize),
     angles_deg: &[f64],
     ppp: &PppParams,
 ) -> Result<Vec<(f64, f64, f64)>, PiError> {
+    let on_grid = |t: f64| angles_deg.iter().any(|&g| (g - t).abs() < 1e-9);
+    let interpolate = PI_ANCHORS.iter().all(|&t| on_grid(t))
+        && angles_deg.iter().all(|&t| (0.0..=180.0).contains(&t));
+    raw_scan_with(mol, link, angles_deg, ppp, interpolate)
+}
+
+/// [`raw_scan`] with the π interpolation switched on or off (off: one SCF per angle).
+pub fn raw_scan_with(
+    mol: &Molecule,
+    link: (usize, usize),
+    angles_deg: &[f64],
+    ppp: &PppParams,
+    interpolate: bool,
+) -> Result<Vec<(f64, f64, f64)>, PiError> {
     let base: Coordinates = layout(mol);
-    let mut out = Vec::with_capacity(angles_deg.len());
-    let mut density = None;
-    for &t in angles_deg {
+    let place = |t: f64| -> Result<Coordinates, PiError> {
         let mut c = base.clone();
         if !rotate_about_bond(mol, &mut c.points, link.0, link.1, t.to_radians()) {
             return Err(PiError::BadModel("the torsion bond is on a ring".into()));
         }
-        let built = build_model(mol, &c, ppp)?;
+        Ok(c)
+    };
+    let mut density = None;
+    let mut pi_energy = |t: f64| -> Result<f64, PiError> {
+        let built = build_model(mol, &place(t)?, ppp)?;
         let r = scf(
             &built.model,
             &ScfParams {
@@ -71,8 +94,41 @@ pub fn raw_scan(
                 ..ScfParams::default()
             },
         )?;
-        let e_pi = (r.e_elec + r.e_core) * EV_TO_KJ_PER_MOL;
         density = Some(r.density);
+        Ok((r.e_elec + r.e_core) * EV_TO_KJ_PER_MOL)
+    };
+    let anchors: Vec<f64> = if interpolate {
+        PI_ANCHORS
+            .iter()
+            .map(|&t| pi_energy(t))
+            .collect::<Result<_, _>>()?
+    } else {
+        Vec::new()
+    };
+    let mut out = Vec::with_capacity(angles_deg.len());
+    for &t in angles_deg {
+        let e_pi = if !interpolate {
+            pi_energy(t)?
+        } else if let Some(k) = PI_ANCHORS.iter().position(|&a| (a - t).abs() < 1e-9) {
+            anchors[k]
+        } else {
+            let q = if t <= 90.0 { 0 } else { 3 };
+            let xs: Vec<f64> = PI_ANCHORS[q..q + 4]
+                .iter()
+                .map(|a| a.to_radians().cos().powi(2))
+                .collect();
+            let x = t.to_radians().cos().powi(2);
+            (0..4)
+                .map(|i| {
+                    let li: f64 = (0..4)
+                        .filter(|&j| j != i)
+                        .map(|j| (x - xs[j]) / (xs[i] - xs[j]))
+                        .product();
+                    li * anchors[q + i]
+                })
+                .sum()
+        };
+        let c = place(t)?;
         let (mh, ch) = with_hydrogens(mol, &c);
         let mut side = vec![false; mh.atom_count()];
         for x in branch(&mh, link.0, link.1) {
