@@ -79,6 +79,16 @@ enum Command {
         /// Everything as JSON.
         #[arg(long)]
         json: bool,
+        /// Use the coordinates of this XYZ file (heavy atoms in SMILES order, hydrogens
+        /// skipped) instead of the built geometry and torsion model.
+        #[arg(long, value_name = "FILE")]
+        xyz: Option<PathBuf>,
+        /// Write the equilibrium geometry (with hydrogens) as XYZ to this file.
+        #[arg(long, value_name = "FILE")]
+        write_xyz: Option<PathBuf>,
+        /// Write the equilibrium geometry (with hydrogens) as an SDF record to this file.
+        #[arg(long, value_name = "FILE")]
+        write_sdf: Option<PathBuf>,
     },
     /// Fragment library tools.
     Fragments {
@@ -118,7 +128,21 @@ fn main() -> ExitCode {
             temperature,
             params,
             json,
-        } => inspect(&smiles, twist, temperature, params.as_deref(), json),
+            xyz,
+            write_xyz,
+            write_sdf,
+        } => inspect(
+            &smiles,
+            twist,
+            temperature,
+            params.as_deref(),
+            json,
+            InspectFiles {
+                xyz,
+                write_xyz,
+                write_sdf,
+            },
+        ),
     }
 }
 
@@ -273,15 +297,24 @@ fn export(store: &Path, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode 
     ExitCode::SUCCESS
 }
 
+/// Files `inspect` reads or writes besides its report.
+struct InspectFiles {
+    xyz: Option<PathBuf>,
+    write_xyz: Option<PathBuf>,
+    write_sdf: Option<PathBuf>,
+}
+
 fn inspect(
     smiles: &str,
     twist: Option<f64>,
     temperature: f64,
     params: Option<&Path>,
     json: bool,
+    files: InspectFiles,
 ) -> ExitCode {
     use lumisift::pi::estimate::{EstimateParams, estimate};
     use lumisift::pi::params::PppParams;
+    use lumisift::report::inspect as page;
     let mol = match lumisift::chem::parse_smiles(smiles) {
         Ok(m) => m,
         Err(e) => return fail(format!("SMILES '{smiles}': {e}")),
@@ -299,119 +332,69 @@ fn inspect(
     if temperature.is_nan() || temperature <= 0.0 {
         return fail("--temperature must be positive (K)");
     }
+    let geometry = match &files.xyz {
+        None => None,
+        Some(path) => {
+            if twist.is_some() {
+                return fail("--xyz and --twist exclude each other (the file fixes the twists)");
+            }
+            match std::fs::read_to_string(path)
+                .map_err(|e| e.to_string())
+                .and_then(|t| lumisift::geometry::parse_xyz(&t))
+                .and_then(|atoms| lumisift::geometry::heavy_atom_coordinates(&mol, &atoms))
+            {
+                Ok(g) => Some(g),
+                Err(e) => return fail(format!("{}: {e}", path.display())),
+            }
+        }
+    };
     let p = EstimateParams {
         temperature_k: temperature,
         twist_deg: twist,
+        geometry,
         ..EstimateParams::default()
     };
     let est = match estimate(&mol, &ppp, &p) {
         Ok(e) => e,
         Err(e) => return fail(format!("{smiles}: {e}")),
     };
+    let canonical = lumisift::chem::canonical_smiles(&mol);
+    let title = format!("{canonical} lumisift equilibrium geometry (estimate, not optimised)");
+    for (path, text) in [
+        (
+            &files.write_xyz,
+            files
+                .write_xyz
+                .as_ref()
+                .map(|_| page::geometry_xyz(&mol, &est, &title)),
+        ),
+        (
+            &files.write_sdf,
+            files
+                .write_sdf
+                .as_ref()
+                .map(|_| page::geometry_sdf(&mol, &est, &canonical)),
+        ),
+    ] {
+        if let (Some(path), Some(text)) = (path, text)
+            && let Err(e) = std::fs::write(path, text)
+        {
+            return fail(format!("{}: {e}", path.display()));
+        }
+    }
     if json {
-        let canonical = lumisift::chem::canonical_smiles(&mol);
-        let out = serde_json::json!({
-            "input": smiles,
-            "canonical_smiles": canonical,
-            "candidate_id": lumisift::chem::candidate_id(&canonical),
-            "temperature_k": temperature,
-            "estimate": est,
-            "caution": "π-tier estimates (PPP-CIS), uncalibrated: raw triplets of local excitations run low and CT states high; see the contributor guide",
-        });
+        let id = lumisift::chem::candidate_id(&canonical);
+        let out = page::to_json(smiles, &canonical, &id, &est, temperature);
         println!(
             "{}",
             serde_json::to_string_pretty(&out).expect("serialisable")
         );
-        return ExitCode::SUCCESS;
-    }
-    println!("{smiles}");
-    println!("canonical {}", lumisift::chem::canonical_smiles(&mol));
-    println!();
-    println!("units (cut at single bonds between ring systems):");
-    println!(
-        "  {:>4} {:<15} {:>6} {:>9} {:>9}",
-        "unit", "role", "atoms", "HOMO/eV", "LUMO/eV"
-    );
-    for (i, u) in est.units.iter().enumerate() {
-        println!(
-            "  {:>4} {:<15} {:>6} {:>9.3} {:>9.3}",
-            i,
-            u.role,
-            u.atoms.len(),
-            u.homo_ev,
-            u.lumo_ev
+    } else {
+        print!(
+            "{}",
+            page::render_text(smiles, &canonical, &est, temperature)
         );
     }
-    if !est.links.is_empty() {
-        println!();
-        println!("torsion (kJ/mol, Boltzmann weight at {temperature} K):");
-        for l in &est.links {
-            println!(
-                "  link atoms {}–{}: equilibrium {:.1}°",
-                l.atoms.0 + 1,
-                l.atoms.1 + 1,
-                l.equilibrium_deg
-            );
-            if l.scan.len() > 1 {
-                let row: Vec<String> = l
-                    .scan
-                    .iter()
-                    .map(|(t, e, w)| format!("{t:.0}°:{e:.1}({w:.2})"))
-                    .collect();
-                println!("    {}", row.join("  "));
-            }
-        }
-    }
-    println!();
-    println!("states at the equilibrium twist:");
-    println!(
-        "  {:<8} {:>8} {:>8} {:>6} {:<6} {:>5} {:>5}",
-        "state", "E/eV", "f", "CT", "label", "hole", "elec"
-    );
-    for (k, s) in est.singlets.iter().enumerate() {
-        println!(
-            "  S{:<7} {:>8.3} {:>8.4} {:>6.2} {:<6} {:>5} {:>5}",
-            k + 1,
-            s.energy_ev,
-            s.osc_strength,
-            s.ct_number,
-            s.label,
-            s.hole_unit,
-            s.electron_unit
-        );
-    }
-    for (k, s) in est.triplets.iter().enumerate() {
-        println!(
-            "  T{:<7} {:>8.3} {:>8} {:>6.2} {:<6} {:>5} {:>5}",
-            k + 1,
-            s.energy_ev,
-            "-",
-            s.ct_number,
-            s.label,
-            s.hole_unit,
-            s.electron_unit
-        );
-    }
-    println!();
-    println!(
-        "S1 {:.3} eV  T1 {:.3} eV  ΔEST {:.3} eV  f(S1) {:.4}  HOMO {:.3}  LUMO {:.3}  HOMO–LUMO overlap {:.3}",
-        est.s1_ev,
-        est.t1_ev,
-        est.delta_est_ev,
-        est.f_s1,
-        est.homo_ev,
-        est.lumo_ev,
-        est.homo_lumo_overlap
-    );
-    println!(
-        "torsion-averaged: S1 {:.3} eV  T1 {:.3} eV  ΔEST {:.3} eV  f(S1) {:.4}",
-        est.avg_s1_ev, est.avg_t1_ev, est.avg_delta_est_ev, est.avg_f_s1
-    );
-    println!();
-    println!(
-        "Caution: uncalibrated π-tier estimates (PPP-CIS, parameters '{}'): raw local triplets run low and CT states high; not yet corrected (work in progress).",
-        est.parameters
-    );
     ExitCode::SUCCESS
 }
 

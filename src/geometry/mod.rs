@@ -1,7 +1,7 @@
 //! Coordinates: a 2D layout of a molecule graph (fused ring systems as regular polygons,
 //! substituents and chains at standard angles, idealised bond lengths), 3D by tetrahedral
 //! placement at sp3 centres and rigid rotation of units about the bonds that link them, explicit
-//! hydrogens, and XYZ / SDF (V2000) writers.
+//! hydrogens, XYZ / SDF (V2000) writers, and an XYZ reader for coordinates made elsewhere.
 //!
 //! Pure functions on in-memory values; the writers produce strings.
 //!
@@ -11,11 +11,13 @@
 
 mod layout;
 mod lengths;
+mod readers;
 pub mod steric;
 mod writers;
 
 pub use layout::{Coordinates, branch, layout, rotate_about_bond, with_hydrogens};
 pub use lengths::ideal_length;
+pub use readers::{XyzAtom, heavy_atom_coordinates, parse_xyz};
 pub use writers::{sdf_block, xyz_block};
 
 /// A 3D point in Å.

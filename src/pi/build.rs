@@ -27,7 +27,13 @@ fn unit(a: Point) -> Option<Point> {
 /// The p-orbital axis of atom a: the normal of the plane of its neighbours; for a terminal or
 /// linear (sp) atom, the axis of the nearest neighbour that has one (a nitrile's out-of-plane
 /// π component is the one that conjugates with its ring, science.md a.3).
-fn p_axis(mol: &Molecule, pts: &[Point], a: usize, from: usize, depth: u8) -> Option<Point> {
+pub(crate) fn p_axis(
+    mol: &Molecule,
+    pts: &[Point],
+    a: usize,
+    from: usize,
+    depth: u8,
+) -> Option<Point> {
     let nb: Vec<usize> = mol
         .neighbours(AtomIdx::new(a))
         .map(|(b, _)| b.index())

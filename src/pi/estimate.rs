@@ -42,6 +42,9 @@ pub struct EstimateParams {
     /// tetracarbazolyl-isophthalonitrile, `examples/active_space_check.rs`).
     pub active_occ: Option<usize>,
     pub active_vir: Option<usize>,
+    /// Use these coordinates (one point per atom of the molecule) as they are: no torsion
+    /// model, the twists measured from them, no averaging.
+    pub geometry: Option<Coordinates>,
 }
 
 impl Default for EstimateParams {
@@ -55,6 +58,7 @@ impl Default for EstimateParams {
             le_threshold: 0.3,
             active_occ: None,
             active_vir: None,
+            geometry: None,
         }
     }
 }
@@ -132,6 +136,8 @@ pub struct Estimate {
     /// The per-angle values behind the averages (one link moved, the others at equilibrium),
     /// for quantities that must be averaged per angle (rates).
     pub angle_samples: Vec<AngleSample>,
+    /// Coordinates (Å, one per atom, hydrogens implicit) of the equilibrium geometry.
+    pub geometry: Vec<[f64; 3]>,
     /// Plain PPP-CIS at the equilibrium twists, without the corrections (for comparison).
     pub raw_s1_ev: f64,
     pub raw_t1_ev: f64,
@@ -396,7 +402,14 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     let grid: Vec<f64> = (0..=steps).map(|k| k as f64 * p.scan_step_deg).collect();
     let mut link_info = Vec::new();
     for &(a, b) in &ls {
-        if let Some(t) = p.twist_deg {
+        if let Some(g) = &p.geometry {
+            let t = measured_twist(mol, g, a, b);
+            link_info.push(LinkInfo {
+                atoms: (a, b),
+                equilibrium_deg: t,
+                scan: vec![(t, 0.0, 1.0)],
+            });
+        } else if let Some(t) = p.twist_deg {
             link_info.push(LinkInfo {
                 atoms: (a, b),
                 equilibrium_deg: t,
@@ -418,19 +431,14 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     }
     let eq: Vec<f64> = link_info.iter().map(|l| l.equilibrium_deg).collect();
     let base = layout(mol);
-    let at_eq = states_at(
-        mol,
-        &twisted(mol, &base, &ls, &eq),
-        ppp,
-        &unit_of,
-        n_units,
-        p,
-        true,
-        None,
-    )?;
+    let eq_coords = match &p.geometry {
+        Some(g) => g.clone(),
+        None => twisted(mol, &base, &ls, &eq),
+    };
+    let at_eq = states_at(mol, &eq_coords, ppp, &unit_of, n_units, p, true, None)?;
     let raw = states_at(
         mol,
-        &twisted(mol, &base, &ls, &eq),
+        &eq_coords,
         ppp,
         &unit_of,
         n_units,
@@ -449,7 +457,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     // warm-started from the equilibrium density. Per-angle values are kept for rate averages.
     let (mut as1, mut at1, mut adest, mut af) = (s1, t1, s1 - t1, f1);
     let mut samples = Vec::new();
-    if p.twist_deg.is_none() && !ls.is_empty() {
+    if p.twist_deg.is_none() && p.geometry.is_none() && !ls.is_empty() {
         let (mut ss, mut tt, mut dd, mut ff) = (0.0, 0.0, 0.0, 0.0);
         // Only S1 and T1 enter the averages: one root per multiplicity.
         let p1 = EstimateParams {
@@ -545,6 +553,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         avg_delta_est_ev: adest,
         avg_f_s1: af,
         angle_samples: samples,
+        geometry: eq_coords.points.clone(),
         parameters: ppp.name.clone(),
     })
 }
@@ -589,4 +598,18 @@ fn estimate_flags(mol: &Molecule, units: &[UnitInfo], links: &[LinkInfo]) -> Vec
         }
     }
     flags
+}
+
+/// Twist (degrees, 0–90) across link a–b: the angle between the p axes of its two atoms.
+fn measured_twist(mol: &Molecule, g: &Coordinates, a: usize, b: usize) -> f64 {
+    match (
+        super::build::p_axis(mol, &g.points, a, b, 0),
+        super::build::p_axis(mol, &g.points, b, a, 0),
+    ) {
+        (Some(x), Some(y)) => {
+            let c = (x[0] * y[0] + x[1] * y[1] + x[2] * y[2]).abs().min(1.0);
+            c.acos().to_degrees()
+        }
+        _ => 0.0,
+    }
 }

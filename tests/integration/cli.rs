@@ -135,7 +135,11 @@ fn inspect_reports_units_torsion_and_states() {
     let s1 = est["s1_ev"].as_f64().unwrap();
     let t1 = est["t1_ev"].as_f64().unwrap();
     assert!(s1 > t1 && (est["delta_est_ev"].as_f64().unwrap() - (s1 - t1)).abs() < 1e-12);
-    assert!(v["caution"].as_str().unwrap().contains("uncalibrated"));
+    assert!(v["caution"].as_str().unwrap().contains("not predictions"));
+    assert!(
+        v["estimate"]["raw_t1_ev"].as_f64().unwrap() < t1,
+        "raw local triplets run low"
+    );
     // A fixed twist of 90°: the pure CT states are dark.
     let out = bin()
         .args([
@@ -169,4 +173,68 @@ fn inspect_reports_units_torsion_and_states() {
         text.contains("ΔEST") && text.contains("torsion-averaged"),
         "{text}"
     );
+}
+
+#[test]
+fn inspect_writes_its_geometry_and_reads_it_back_with_xyz() {
+    // Round trip: the equilibrium geometry written with --write-xyz and read with --xyz gives
+    // the same states (twist measured from the coordinates instead of the torsion model).
+    let smi = "N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21";
+    let dir = std::env::temp_dir().join(format!("lumisift-xyz-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let (xyz, sdf) = (dir.join("eq.xyz"), dir.join("eq.sdf"));
+    let run = |args: &[&str]| {
+        let out = bin().args(args).output().unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        serde_json::from_slice::<serde_json::Value>(&out.stdout).unwrap()
+    };
+    let a = run(&[
+        "inspect",
+        smi,
+        "--json",
+        "--write-xyz",
+        xyz.to_str().unwrap(),
+        "--write-sdf",
+        sdf.to_str().unwrap(),
+    ]);
+    let text = std::fs::read_to_string(&xyz).unwrap();
+    // 21 heavy atoms + 12 hydrogens (formula C19H12N2).
+    assert_eq!(text.lines().next().unwrap().trim(), "33");
+    let sdf_text = std::fs::read_to_string(&sdf).unwrap();
+    assert!(sdf_text.contains("M  END") && sdf_text.contains(">  <S1_eV>"));
+    let b = run(&["inspect", smi, "--json", "--xyz", xyz.to_str().unwrap()]);
+    let (ea, eb) = (&a["estimate"], &b["estimate"]);
+    let twist_a = ea["links"][0]["equilibrium_deg"].as_f64().unwrap();
+    let twist_b = eb["links"][0]["equilibrium_deg"].as_f64().unwrap();
+    assert!((twist_a - twist_b).abs() < 1e-3, "{twist_a} vs {twist_b}");
+    for key in ["s1_ev", "t1_ev", "f_s1"] {
+        let (x, y) = (ea[key].as_f64().unwrap(), eb[key].as_f64().unwrap());
+        assert!((x - y).abs() < 1e-5, "{key}: {x} vs {y}");
+    }
+    // A file whose atoms are not in SMILES order is refused with the line named.
+    let bad = temp_file(
+        "bad-order.xyz",
+        &text.replacen("\nN ", "\nQ ", 1).replacen("Q ", "O ", 1),
+    );
+    let out = bin()
+        .args(["inspect", smi, "--xyz", bad.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("line 3") && err.contains("SMILES order"),
+        "{err}"
+    );
+    let short = temp_file("short.xyz", "5\ncomment\nC 0 0 0\nC 1 0 0\n");
+    let out = bin()
+        .args(["inspect", smi, "--xyz", short.to_str().unwrap()])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("promises 5 atoms"), "{err}");
 }
