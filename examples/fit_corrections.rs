@@ -20,7 +20,7 @@ fn main() {
         entries.len()
     );
     let mut best: Option<(f64, f64, f64, refset::Metrics)> = None;
-    for li in 0..=18 {
+    for li in 0..=19 {
         let lambda = li as f64 * 0.05;
         for ci in 0..=20 {
             let ct = ci as f64 * 0.1;

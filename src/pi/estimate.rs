@@ -21,7 +21,7 @@ use crate::geometry::{Coordinates, layout, rotate_about_bond};
 use super::analysis::characterise;
 use super::build::build_model;
 use super::params::PppParams;
-use super::torsion::{TorsionParams, profile, raw_scan};
+use super::torsion::{TorsionParams, profile, raw_scan_with};
 use super::typing::{PiSite, perceive};
 use super::{CisParams, Corrections, Multiplicity, PiError, ScfParams, cis, scf};
 
@@ -97,6 +97,13 @@ pub struct StateInfo {
     pub hole_unit: usize,
     pub electron_unit: usize,
 }
+
+/// Starting twist (degrees) of links that share an atom (triarylamine and triarylborane
+/// propellers twist their rings by roughly 30–50°: a start inside that basin).
+pub const PROPELLER_START_DEG: f64 = 45.0;
+
+/// Maximum coordinate-descent sweeps over links that share an atom.
+pub const TORSION_SWEEPS: usize = 4;
 
 /// Share of each link's Boltzmann weight covered by the averaging points.
 pub const AVERAGE_WEIGHT_COVERAGE: f64 = 0.99;
@@ -186,18 +193,133 @@ fn local_states(m: &Molecule, ppp: &PppParams) -> (f64, f64, f64, f64) {
     }
 }
 
-/// Links: single non-ring bonds between two ring atoms.
+/// Acyclic amine N and three-coordinate B atoms in the π system with at least one ring
+/// neighbour: the hubs of diarylamine / dialkylamine donors and triarylborane acceptors.
+fn is_hub(mol: &Molecule, typing: &super::typing::PiTyping, ring_atom: &[bool], a: usize) -> bool {
+    !ring_atom[a]
+        && matches!(typing.sites[a], PiSite::Site("N2") | PiSite::Site("B"))
+        && mol.degree(AtomIdx::new(a)) == 3
+}
+
+/// Links (the bonds that twist): single, non-ring, non-aromatic bonds between two ring atoms,
+/// or between a ring atom and a hub (acyclic amine N or three-coordinate B in the π system).
 pub fn links(mol: &Molecule) -> Vec<(usize, usize)> {
     let ring = rings::ring_bonds(mol);
     let ra = rings::ring_atoms(mol, &ring);
+    let typing = perceive(mol);
     mol.graph
         .edge_indices()
         .filter(|e| !ring[e.index()] && !mol.bond(*e).aromatic)
+        .filter(|e| mol.bond(*e).order == crate::chem::BondOrder::Single)
         .filter_map(|e| {
             let (a, b) = mol.graph.edge_endpoints(e).expect("edge exists");
-            (ra[a.index()] && ra[b.index()]).then_some((a.index(), b.index()))
+            let (a, b) = (a.index(), b.index());
+            let ok = (ra[a] && (ra[b] || is_hub(mol, &typing, &ra, b)))
+                || (ra[b] && is_hub(mol, &typing, &ra, a));
+            ok.then_some((a, b))
         })
         .collect()
+}
+
+/// The units used for roles and charge-transfer character: the pieces left after cutting
+/// every link, except that a hub joins its ring neighbours' pieces — all but one: an amine
+/// N keeps apart the neighbour piece with the lowest LUMO (the acceptor side), a boron the one
+/// with the highest HOMO (the donor side); frontier energies from each piece's own π
+/// calculation (capped with hydrogen). A hub with one ring neighbour stays a unit of its own
+/// (a dialkylamino donor). Returns the unit of every atom.
+pub fn partition(mol: &Molecule, ppp: &PppParams) -> Vec<usize> {
+    let ls = links(mol);
+    let fine = units(mol, &ls);
+    let n_fine = fine.iter().max().map_or(0, |m| m + 1);
+    let ring = rings::ring_bonds(mol);
+    let ra = rings::ring_atoms(mol, &ring);
+    let typing = perceive(mol);
+    let mut frontier: Vec<Option<(f64, f64)>> = vec![None; n_fine];
+    let mut frontier_of = |u: usize| -> (f64, f64) {
+        *frontier[u].get_or_insert_with(|| {
+            let atoms: Vec<usize> = (0..mol.atom_count()).filter(|&a| fine[a] == u).collect();
+            frontier_only(&unit_molecule(mol, &atoms), ppp)
+        })
+    };
+    // Union-find over fine units.
+    let mut parent: Vec<usize> = (0..n_fine).collect();
+    fn root(p: &mut [usize], x: usize) -> usize {
+        let mut r = x;
+        while p[r] != r {
+            r = p[r];
+        }
+        p[x] = r;
+        r
+    }
+    for hub in 0..mol.atom_count() {
+        if !is_hub(mol, &typing, &ra, hub) {
+            continue;
+        }
+        let mut nb: Vec<usize> = ls
+            .iter()
+            .filter_map(|&(a, b)| {
+                if a == hub {
+                    Some(fine[b])
+                } else if b == hub {
+                    Some(fine[a])
+                } else {
+                    None
+                }
+            })
+            .collect();
+        nb.sort_unstable();
+        nb.dedup();
+        if nb.len() < 2 {
+            continue;
+        }
+        let donor_hub = matches!(typing.sites[hub], PiSite::Site("N2"));
+        let key = |u: usize, f: &mut dyn FnMut(usize) -> (f64, f64)| {
+            let (h, l) = f(u);
+            if donor_hub { -l } else { h }
+        };
+        // The neighbour kept apart: extreme key, ties to the lowest unit index (deterministic
+        // for a given atom order; symmetric neighbours give the same energies either way).
+        let mut apart = nb[0];
+        let mut best = key(apart, &mut frontier_of);
+        for &u in &nb[1..] {
+            let k = key(u, &mut frontier_of);
+            if k > best + 1e-9 {
+                apart = u;
+                best = k;
+            }
+        }
+        let hu = fine[hub];
+        for &u in &nb {
+            if u != apart {
+                let (x, y) = (root(&mut parent, hu), root(&mut parent, u));
+                parent[y] = x;
+            }
+        }
+    }
+    // Renumber in order of first atom.
+    let mut label = vec![usize::MAX; n_fine];
+    let mut next = 0;
+    (0..mol.atom_count())
+        .map(|a| {
+            let r = root(&mut parent, fine[a]);
+            if label[r] == usize::MAX {
+                label[r] = next;
+                next += 1;
+            }
+            label[r]
+        })
+        .collect()
+}
+
+/// HOMO and LUMO (eV) of a small molecule, or NaN.
+fn frontier_only(m: &Molecule, ppp: &PppParams) -> (f64, f64) {
+    build_model(m, &layout(m), ppp)
+        .and_then(|b| scf(&b.model, &ScfParams::default()))
+        .map(|r| {
+            let l = r.nocc.min(r.energies.len() - 1);
+            (r.energies[r.nocc.saturating_sub(1)], r.energies[l])
+        })
+        .unwrap_or((f64::NAN, f64::NAN))
 }
 
 /// Unit of every atom after cutting `links`.
@@ -358,7 +480,7 @@ fn twisted(
 /// Estimate the excited states of `mol` (see the module documentation).
 pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<Estimate, PiError> {
     let ls = links(mol);
-    let unit_of = units(mol, &ls);
+    let unit_of = partition(mol, ppp);
     let n_units = unit_of.iter().max().map_or(0, |m| m + 1);
     // Units and their roles.
     let mut units: Vec<UnitInfo> = (0..n_units)
@@ -381,7 +503,19 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
             .filter(|&u| key(&units[u]).is_finite())
             .max_by(|&a, &b| key(&units[a]).total_cmp(&key(&units[b])))
     };
-    let donor = best(&|u: &UnitInfo| u.homo_ev);
+    // A unit that is only an amine hub with alkyl groups (dialkylamino) has no π system of its
+    // own to compute; its lone pair makes it the donor.
+    let typing = perceive(mol);
+    let amine_only = |u: &UnitInfo| {
+        !u.homo_ev.is_finite()
+            && u.atoms
+                .iter()
+                .any(|&a| matches!(typing.sites[a], PiSite::Site("N2")))
+    };
+    let donor = units
+        .iter()
+        .position(amine_only)
+        .or_else(|| best(&|u: &UnitInfo| u.homo_ev));
     let acceptor = best(&|u: &UnitInfo| -u.lumo_ev);
     for (i, u) in units.iter_mut().enumerate() {
         u.role = match (Some(i) == donor, Some(i) == acceptor) {
@@ -400,37 +534,81 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     };
     let steps = (180.0 / p.scan_step_deg).round() as usize;
     let grid: Vec<f64> = (0..=steps).map(|k| k as f64 * p.scan_step_deg).collect();
-    let mut link_info = Vec::new();
-    for &(a, b) in &ls {
-        if let Some(g) = &p.geometry {
-            let t = measured_twist(mol, g, a, b);
-            link_info.push(LinkInfo {
+    let base = layout(mol);
+    let mut link_info: Vec<LinkInfo> = ls
+        .iter()
+        .map(|&(a, b)| {
+            let t = match (&p.geometry, p.twist_deg) {
+                (Some(g), _) => measured_twist(mol, g, a, b),
+                (None, Some(t)) => t,
+                (None, None) => 0.0,
+            };
+            LinkInfo {
                 atoms: (a, b),
                 equilibrium_deg: t,
                 scan: vec![(t, 0.0, 1.0)],
-            });
-        } else if let Some(t) = p.twist_deg {
-            link_info.push(LinkInfo {
-                atoms: (a, b),
-                equilibrium_deg: t,
-                scan: vec![(t, 0.0, 1.0)],
-            });
-        } else {
-            let raw = raw_scan(mol, (a, b), &grid, ppp)?;
-            let prof = profile(&raw, &tp);
-            link_info.push(LinkInfo {
-                atoms: (a, b),
-                equilibrium_deg: prof.equilibrium_deg,
-                scan: prof
-                    .points
+            }
+        })
+        .collect();
+    if p.geometry.is_none() && p.twist_deg.is_none() {
+        // Each link scanned with the others where they are. Links that share an atom (the
+        // rotors of a triarylamine or triarylborane propeller) clash with each other, so they
+        // are relaxed by sweeps (coordinate descent, at most TORSION_SWEEPS, until no
+        // equilibrium moves by more than 2°); independent links need one pass.
+        let coupled: Vec<bool> = ls
+            .iter()
+            .enumerate()
+            .map(|(k, &(a, b))| {
+                ls.iter()
+                    .enumerate()
+                    .any(|(j, &(c, d))| j != k && (a == c || a == d || b == c || b == d))
+            })
+            .collect();
+        // Propeller start: coupled links begin at PROPELLER_START_DEG (coordinate descent from
+        // a planar start gets trapped with two rings perpendicular and one planar).
+        for (k, l) in link_info.iter_mut().enumerate() {
+            if coupled[k] {
+                l.equilibrium_deg = PROPELLER_START_DEG;
+            }
+        }
+        for sweep in 0..TORSION_SWEEPS {
+            let mut moved = false;
+            for k in 0..ls.len() {
+                if sweep > 0 && !coupled[k] {
+                    continue;
+                }
+                // The other links at their current angles, this one at 0°.
+                let mut tw: Vec<f64> = link_info.iter().map(|l| l.equilibrium_deg).collect();
+                tw[k] = 0.0;
+                let start = twisted(mol, &base, &ls, &tw);
+                let on_grid = |t: f64| grid.iter().any(|&g| (g - t).abs() < 1e-9);
+                let interpolate = [0.0, 30.0, 60.0, 90.0, 120.0, 150.0, 180.0]
                     .iter()
-                    .map(|q| (q.theta_deg, q.e_total, q.weight))
-                    .collect(),
-            });
+                    .all(|&t| on_grid(t));
+                let raw = raw_scan_with(mol, ls[k], &grid, ppp, interpolate, &start)?;
+                let prof = profile(&raw, &tp);
+                if sweep == 0 || (prof.equilibrium_deg - link_info[k].equilibrium_deg).abs() > 2.0 {
+                    moved |= sweep > 0;
+                }
+                link_info[k] = LinkInfo {
+                    atoms: ls[k],
+                    equilibrium_deg: prof.equilibrium_deg,
+                    scan: prof
+                        .points
+                        .iter()
+                        .map(|q| (q.theta_deg, q.e_total, q.weight))
+                        .collect(),
+                };
+            }
+            if sweep > 0 && !moved {
+                break;
+            }
+            if !coupled.iter().any(|&c| c) {
+                break;
+            }
         }
     }
     let eq: Vec<f64> = link_info.iter().map(|l| l.equilibrium_deg).collect();
-    let base = layout(mol);
     let eq_coords = match &p.geometry {
         Some(g) => g.clone(),
         None => twisted(mol, &base, &ls, &eq),
@@ -586,6 +764,13 @@ fn estimate_flags(mol: &Molecule, units: &[UnitInfo], links: &[LinkInfo]) -> Vec
                     .join(",")
             ));
         }
+    }
+    if typing.sites.contains(&PiSite::Site("B")) {
+        flags.push(
+            "boron: the three-coordinate B parameters are derived (Hückel-mapped), not yet \
+             calibrated against reference data; energies of boron-containing units are unreliable"
+                .into(),
+        );
     }
     for l in links {
         if (l.equilibrium_deg - 90.0).abs() < 1.0 {

@@ -65,18 +65,19 @@ pub fn raw_scan(
     let on_grid = |t: f64| angles_deg.iter().any(|&g| (g - t).abs() < 1e-9);
     let interpolate = PI_ANCHORS.iter().all(|&t| on_grid(t))
         && angles_deg.iter().all(|&t| (0.0..=180.0).contains(&t));
-    raw_scan_with(mol, link, angles_deg, ppp, interpolate)
+    raw_scan_with(mol, link, angles_deg, ppp, interpolate, &layout(mol))
 }
 
-/// [`raw_scan`] with the π interpolation switched on or off (off: one SCF per angle).
+/// [`raw_scan`] with the π interpolation switched on or off (off: one SCF per angle), from
+/// the starting geometry `base` (θ = 0 is `base` itself; other links as they are in it).
 pub fn raw_scan_with(
     mol: &Molecule,
     link: (usize, usize),
     angles_deg: &[f64],
     ppp: &PppParams,
     interpolate: bool,
+    base: &Coordinates,
 ) -> Result<Vec<(f64, f64, f64)>, PiError> {
-    let base: Coordinates = layout(mol);
     let place = |t: f64| -> Result<Coordinates, PiError> {
         let mut c = base.clone();
         if !rotate_about_bond(mol, &mut c.points, link.0, link.1, t.to_radians()) {

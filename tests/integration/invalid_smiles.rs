@@ -305,7 +305,7 @@ fn near_misses_are_accepted() {
 const ALPHABET: &str = "CNOScnosBbPpFI[]()=#@+-123%0.:/\\H*";
 
 /// Parsing never panics; if it succeeds, the canonical string re-parses, to the same canonical
-/// string, and the molecule can be weighed.
+/// string, and the molecule can be weighed (or names the isotope it has no mass for).
 fn parse_and_round_trip(s: &str) -> Result<(), TestCaseError> {
     let Ok(mol) = parse_smiles(s) else {
         return Ok(());
@@ -316,7 +316,12 @@ fn parse_and_round_trip(s: &str) -> Result<(), TestCaseError> {
     })?;
     let canon2 = canonical_smiles(&again);
     prop_assert_eq!(&canon2, &canon, "input {:?}", s);
-    prop_assert!(facts(&mol).is_ok(), "{:?}: no facts", s);
+    // Weighing succeeds, except for an isotope without a tabulated mass (e.g. [1B]), which is
+    // a clear error, not a panic.
+    match facts(&mol) {
+        Ok(_) | Err(lumisift::chem::ChemError::NoIsotopeMass { .. }) => {}
+        Err(e) => prop_assert!(false, "{:?}: no facts: {}", s, e),
+    }
     Ok(())
 }
 

@@ -245,3 +245,42 @@ fn the_validation_table_matches_the_reference_set() {
         assert!(failed.contains(&"S1".to_string()));
     }
 }
+
+#[test]
+fn amine_hubs_twist_as_propellers_and_join_the_donor_side() {
+    let ppp = PppParams::default_set();
+    let est =
+        |s: &str| estimate(&parse_smiles(s).unwrap(), &ppp, &EstimateParams::default()).unwrap();
+    // 4-(diphenylamino)benzonitrile: all three N–aryl bonds twist; the N joins its two phenyls
+    // (donor) and the benzonitrile (lowest LUMO) stays apart (acceptor).
+    let e = est("N#Cc1ccc(cc1)N(c1ccccc1)c1ccccc1");
+    assert_eq!(e.links.len(), 3);
+    let mut sizes: Vec<(usize, String)> = e
+        .units
+        .iter()
+        .map(|u| (u.atoms.len(), u.role.clone()))
+        .collect();
+    sizes.sort();
+    assert_eq!(sizes, vec![(8, "acceptor".into()), (13, "donor".into())]);
+    // Triphenylamine: a propeller; gas-phase electron diffraction and crystal structures put
+    // the rings at roughly 40–50° (from memory; common knowledge of the trade). Bounds wide.
+    let t = est("c1ccc(cc1)N(c1ccccc1)c1ccccc1");
+    for l in &t.links {
+        assert!(
+            (25.0..=65.0).contains(&l.equilibrium_deg),
+            "{:?}",
+            t.twists_deg
+        );
+    }
+    // 4-(dimethylamino)benzonitrile: the NMe2 group is its own donor unit.
+    let d = est("CN(C)c1ccc(cc1)C#N");
+    let roles: Vec<(usize, &str)> = d
+        .units
+        .iter()
+        .map(|u| (u.atoms.len(), u.role.as_str()))
+        .collect();
+    assert!(
+        roles.contains(&(3, "donor")) && roles.contains(&(8, "acceptor")),
+        "{roles:?}"
+    );
+}

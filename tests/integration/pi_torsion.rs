@@ -96,7 +96,15 @@ fn interpolated_pi_energy_matches_direct_scf_between_the_anchors() {
         let m = parse_smiles(smi).unwrap();
         let l = link(&m);
         let fast = raw_scan(&m, l, &grid, &ppp).unwrap();
-        let slow = lumisift::pi::torsion::raw_scan_with(&m, l, &grid, &ppp, false).unwrap();
+        let slow = lumisift::pi::torsion::raw_scan_with(
+            &m,
+            l,
+            &grid,
+            &ppp,
+            false,
+            &lumisift::geometry::layout(&m),
+        )
+        .unwrap();
         for (a, b) in fast.iter().zip(&slow) {
             assert_eq!(a.0, b.0);
             assert!((a.2 - b.2).abs() < 1e-9, "steric term is exact");

@@ -7,9 +7,9 @@
 //! when no π→π* state is among the three computed roots the quantity is skipped.
 //!
 //! Charge-transfer character of a reference state: Σ_pairs w·(1 − Σ_u P_from(u)·P_to(u)) with
-//! P the Löwdin population of an orbital on unit u (units cut as in `pi::estimate::units`); the
+//! P the Löwdin population of an orbital on unit u (units as in `pi::estimate::partition`); the
 //! same separation probability as the π tier's configuration weights. State labelled CT when
-//! at least 0.5.
+//! at least 0.5. Entries with the same geometry (same SMILES and twist) count once.
 #![allow(dead_code)]
 
 use std::path::{Path, PathBuf};
@@ -61,6 +61,8 @@ pub fn load() -> Vec<RefEntry> {
     let root = root();
     let list = std::fs::read_to_string(root.join("reference_set.tsv")).expect("reference list");
     let mut out = Vec::new();
+    // The same geometry listed twice (a dyad at a twist that is also a scan point) counts once.
+    let mut seen = std::collections::BTreeSet::new();
     for line in list
         .lines()
         .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
@@ -89,9 +91,14 @@ pub fn load() -> Vec<RefEntry> {
             if r.get("error").is_some() {
                 continue;
             }
+            if !seen.insert(format!("{} {:?}", f[1], t.map(|x| x.round() as i64))) {
+                continue;
+            }
             let molecule = parse_smiles(f[1]).expect("reference SMILES parse");
-            let ls = lumisift::pi::estimate::links(&molecule);
-            let unit = lumisift::pi::estimate::units(&molecule, &ls);
+            let unit = lumisift::pi::estimate::partition(
+                &molecule,
+                &lumisift::pi::params::PppParams::default_set(),
+            );
             let n_units = unit.iter().max().map_or(0, |m| m + 1);
             let orb = &o["orbitals"];
             let unit_pop = |label: &str| -> Vec<f64> {
