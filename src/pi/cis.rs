@@ -339,7 +339,7 @@ fn transition(
 
 /// Dimension above which the lowest roots come from Davidson iteration on a direct σ-vector
 /// (no CI matrix is built) instead of a full diagonalisation of the dense matrix.
-pub const DAVIDSON_MIN_DIM: usize = 200;
+pub const DAVIDSON_MIN_DIM: usize = 60;
 
 /// Residual norm (eV) at which a Davidson root counts as converged; the eigenvalue error is of
 /// the order of its square.
