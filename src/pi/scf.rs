@@ -16,7 +16,15 @@ pub struct ScfParams {
     pub diis_size: usize,
     /// Starting density (warm start across a torsion scan); the core-Hamiltonian guess if None.
     pub initial_density: Option<DMatrix<f64>>,
+    /// Level shift (eV) added to the virtual space while iterating (Saunders & Hillier, Int.
+    /// J. Quantum Chem. 7, 699 (1973)); it damps occupied–virtual oscillations and leaves the
+    /// converged solution unchanged. 0 = off. Without it, a failed run is retried once with
+    /// `RETRY_LEVEL_SHIFT_EV`.
+    pub level_shift: f64,
 }
+
+/// Level shift (eV) of the automatic retry of a non-converged SCF.
+pub const RETRY_LEVEL_SHIFT_EV: f64 = 2.0;
 
 impl Default for ScfParams {
     fn default() -> Self {
@@ -26,6 +34,7 @@ impl Default for ScfParams {
             density_tol: 1e-7,
             diis_size: 8,
             initial_density: None,
+            level_shift: 0.0,
         }
     }
 }
@@ -112,6 +121,20 @@ fn density(c: &DMatrix<f64>, nocc: usize) -> DMatrix<f64> {
 /// An inconsistent model, an odd electron count, or no convergence within `max_iter` (the
 /// caller decides; a non-converged result is never returned as if it were good).
 pub fn scf(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
+    match scf_once(model, params) {
+        Err(PiError::NotConverged { .. }) if params.level_shift == 0.0 => scf_once(
+            model,
+            &ScfParams {
+                level_shift: RETRY_LEVEL_SHIFT_EV,
+                max_iter: params.max_iter * 2,
+                ..params.clone()
+            },
+        ),
+        r => r,
+    }
+}
+
+fn scf_once(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
     model.check()?;
     let n = model.n_sites();
     let nocc = (model.n_electrons() / 2) as usize;
@@ -140,6 +163,16 @@ pub fn scf(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
             diis(&fs, &errs).unwrap_or(f)
         } else {
             f
+        };
+        let f_use = if params.level_shift > 0.0 {
+            // F + shift·(1 − P/2): virtuals (P/2 projects on the occupied space) move up.
+            let mut fs = f_use - &p * (0.5 * params.level_shift);
+            for i in 0..n {
+                fs[(i, i)] += params.level_shift;
+            }
+            fs
+        } else {
+            f_use
         };
         let (_, c) = sorted_eigen(f_use);
         let p_new = density(&c, nocc);
