@@ -10,9 +10,12 @@
 //! 3. From placed atoms the rest grows breadth-first: one substituent on a ring atom goes along
 //!    the exterior bisector; chain atoms continue at 120° (sp2/sp3, zig-zag) or 180° (sp); a
 //!    substituent that begins a ring system carries that system with its centre straight ahead.
-//! 4. 3D: everything lies in z = 0 except the two substituents of an sp3 atom that sits in a ring
-//!    with its other two bonds (acridan C9, silicon and spiro centres): they go above and below
-//!    the ring plane at the tetrahedral angle. Hydrogens are added on request with standard
+//! 4. 3D: everything lies in z = 0 except (a) the two substituents of an sp3 atom that sits in a
+//!    ring with its other two bonds (acridan C9, silicon centres, cyclic sulfones): above and
+//!    below the ring plane at the tetrahedral angle; (b) the substituents of acyclic
+//!    four-coordinate centres (tert-butyl, sulfone and phosphine-oxide links): tetrahedral about
+//!    the bond to the larger part of the molecule; (c) spiro centres: the smaller ring system is
+//!    turned perpendicular to the other. Hydrogens are added on request with standard
 //!    trigonal/tetrahedral directions.
 
 use std::collections::VecDeque;
@@ -404,7 +407,222 @@ fn layout_in_order(mol: &Molecule) -> Coordinates {
     }
     let mut points: Vec<Point> = l.pos.into_iter().map(|p| p.unwrap_or([0.0; 3])).collect();
     lift_sp3(mol, &mut points);
+    tetrahedral_acyclic(mol, &mut points);
+    spiro_perpendicular(mol, &mut points);
+    relieve_rotors(mol, &mut points);
     Coordinates { points }
+}
+
+/// Rotors at four-coordinate centres (the phenyls of a 9,9-diphenylacridan or a
+/// diphenylphosphoryl group, tert-butyl groups): each non-ring single bond from such a centre to
+/// a neighbour with further heavy neighbours is turned, smaller side moving, to the angle of
+/// least steric repulsion on a 15° grid (`steric::side_repulsion`, hydrogens included); two
+/// sweeps. π links between ring systems are left to the torsion model.
+fn relieve_rotors(mol: &Molecule, points: &mut [Point]) {
+    let ring = rings::ring_bonds(mol);
+    let heavy_deg = |a: usize| {
+        mol.neighbours(AtomIdx::new(a))
+            .filter(|(b, _)| mol.atom(*b).element != 1)
+            .count()
+    };
+    let mut rotors = Vec::new();
+    for e in mol.graph.edge_indices() {
+        if ring[e.index()] || mol.bond(e).order != BondOrder::Single {
+            continue;
+        }
+        let (x, y) = mol.graph.edge_endpoints(e).expect("edge exists");
+        let (x, y) = (x.index(), y.index());
+        if !(tetra_centre(mol, AtomIdx::new(x)) || tetra_centre(mol, AtomIdx::new(y))) {
+            continue;
+        }
+        if heavy_deg(x) < 2 || heavy_deg(y) < 2 {
+            continue;
+        }
+        // Rotate the smaller side.
+        let (sx, sy) = (branch(mol, y, x).len(), branch(mol, x, y).len());
+        rotors.push(if sy <= sx { (x, y) } else { (y, x) });
+    }
+    if rotors.is_empty() {
+        return;
+    }
+    for _ in 0..2 {
+        for &(a, b) in &rotors {
+            let base: Vec<Point> = points.to_vec();
+            let mut best = (f64::INFINITY, 0.0);
+            for k in 0..24 {
+                let ang = (k as f64 * 15.0).to_radians();
+                let mut trial = base.clone();
+                rotate_about_bond(mol, &mut trial, a, b, ang);
+                let (mh, ch) = with_hydrogens(mol, &Coordinates { points: trial });
+                let mut side = vec![false; mh.atom_count()];
+                for x in branch(&mh, a, b) {
+                    side[x] = true;
+                }
+                let e = super::steric::side_repulsion(&mh, &ch, &side);
+                if e < best.0 - 1e-9 {
+                    best = (e, ang);
+                }
+            }
+            rotate_about_bond(mol, points, a, b, best.1);
+        }
+    }
+}
+
+/// Turn the branch that starts at `s` (seen from its neighbour `a`) rigidly about `a` so that
+/// the bond a→s points along the unit vector `dir`: the branch keeps its shape and its
+/// orientation relative to the bond (a translation would leave a ring pointing the old way).
+fn swing_branch(mol: &Molecule, points: &mut [Point], a: usize, s: usize, dir: Point) {
+    let pa = points[a];
+    let from = unit(sub(points[s], pa));
+    let to = unit(dir);
+    let axis = cross(from, to);
+    let sin = norm(axis);
+    let cos = dot(from, to);
+    let side = branch(mol, a, s);
+    if sin < 1e-9 {
+        if cos > 0.0 {
+            return;
+        }
+        // Opposite: half turn about any perpendicular axis.
+        let mut p = cross(from, [0.0, 0.0, 1.0]);
+        if norm(p) < 1e-6 {
+            p = cross(from, [0.0, 1.0, 0.0]);
+        }
+        let k = unit(p);
+        for &x in &side {
+            let v = sub(points[x], pa);
+            points[x] = add(pa, sub(scale(k, 2.0 * dot(k, v)), v));
+        }
+        return;
+    }
+    let k = scale(axis, 1.0 / sin);
+    for &x in &side {
+        let v = sub(points[x], pa);
+        let r = add(
+            add(scale(v, cos), scale(cross(k, v), sin)),
+            scale(k, dot(k, v) * (1.0 - cos)),
+        );
+        points[x] = add(pa, r);
+    }
+}
+
+/// Is atom `a` a four-coordinate σ centre (sp3 carbon or silicon, sulfone/sulfoxide S,
+/// phosphine-oxide P, quaternary centres): four neighbours counting hydrogens, not aromatic,
+/// single bonds except double bonds to terminal O or S.
+fn tetra_centre(mol: &Molecule, a: AtomIdx) -> bool {
+    let at = mol.atom(a);
+    if at.aromatic || mol.degree(a) + at.hydrogens as usize != 4 {
+        return false;
+    }
+    mol.neighbours(a).all(|(b, e)| match mol.bond(e).order {
+        BondOrder::Single => true,
+        BondOrder::Double => {
+            matches!(at.element, 15 | 16)
+                && matches!(mol.atom(b).element, 8 | 16)
+                && mol.degree(b) == 1
+        }
+        _ => false,
+    })
+}
+
+/// Acyclic four-coordinate centres (tert-butyl carbons, sulfone S between two aryls, P=O): the
+/// 2D layout puts their substituents in the plane at 120°, where they meet ring atoms three
+/// bonds away. Each substituent branch (all but the neighbour holding the largest part of the
+/// molecule) is moved rigidly to a tetrahedral direction: one in the plane of the parent bond
+/// and the first substituent, two above and below.
+fn tetrahedral_acyclic(mol: &Molecule, points: &mut [Point]) {
+    let ring = rings::ring_bonds(mol);
+    let ring_atom = rings::ring_atoms(mol, &ring);
+    let cos_t = (109.47f64).to_radians().cos();
+    let sin_t = (109.47f64).to_radians().sin();
+    for a in mol.atoms() {
+        if ring_atom[a.index()] || !tetra_centre(mol, a) || mol.degree(a) < 2 {
+            continue;
+        }
+        let nb: Vec<usize> = mol.neighbours(a).map(|(b, _)| b.index()).collect();
+        let sizes: Vec<usize> = nb
+            .iter()
+            .map(|&b| branch(mol, a.index(), b).len())
+            .collect();
+        let parent_k = (0..nb.len())
+            .max_by_key(|&k| (sizes[k], std::cmp::Reverse(nb[k])))
+            .expect("degree >= 2");
+        let parent = nb[parent_k];
+        let pa = points[a.index()];
+        let u = unit(sub(points[parent], pa));
+        let others: Vec<usize> = nb.iter().copied().filter(|&b| b != parent).collect();
+        // In-plane reference perpendicular to u, from the first substituent's direction.
+        let first = sub(points[others[0]], pa);
+        let mut w = sub(first, scale(u, dot(first, u)));
+        if norm(w) < 1e-6 {
+            w = cross(u, [0.0, 0.0, 1.0]);
+            if norm(w) < 1e-6 {
+                w = cross(u, [0.0, 1.0, 0.0]);
+            }
+        }
+        let w = unit(w);
+        let v = unit(cross(u, w));
+        for (k, &s) in others.iter().enumerate() {
+            let phi = (k as f64) * 2.0 * std::f64::consts::PI / 3.0;
+            let d = add(
+                scale(u, cos_t),
+                scale(add(scale(w, phi.cos()), scale(v, phi.sin())), sin_t),
+            );
+            swing_branch(mol, points, a.index(), s, d);
+        }
+    }
+}
+
+/// Spiro centres (one atom shared by two ring systems): the layout puts both systems in one
+/// plane; the smaller side is turned by 90° about the axis from the spiro atom through the
+/// bisector of its two bonds into that side, so the two ring planes end up perpendicular.
+fn spiro_perpendicular(mol: &Molecule, points: &mut [Point]) {
+    let ring = rings::ring_bonds(mol);
+    for a in mol.atoms() {
+        let rb: Vec<usize> = mol
+            .neighbours(a)
+            .filter(|(_, e)| ring[e.index()])
+            .map(|(b, _)| b.index())
+            .collect();
+        if rb.len() != 4 || mol.atom(a).aromatic {
+            continue;
+        }
+        // Group the four ring neighbours by which can reach which without passing through a.
+        let side_of = |start: usize| branch(mol, a.index(), start);
+        let s0 = side_of(rb[0]);
+        let partner: Vec<usize> = rb[1..].iter().copied().filter(|b| s0.contains(b)).collect();
+        if partner.len() != 1 {
+            continue; // fused through a, not spiro
+        }
+        let other: Vec<usize> = rb[1..]
+            .iter()
+            .copied()
+            .filter(|&b| b != partner[0])
+            .collect();
+        let s1 = side_of(other[0]);
+        if s1.iter().any(|x| s0.contains(x)) {
+            continue;
+        }
+        let (side, ends) = if s0.len() <= s1.len() {
+            (s0, [rb[0], partner[0]])
+        } else {
+            (s1, [other[0], other[1]])
+        };
+        let pa = points[a.index()];
+        let k = unit(add(
+            unit(sub(points[ends[0]], pa)),
+            unit(sub(points[ends[1]], pa)),
+        ));
+        let (s, c) = (std::f64::consts::FRAC_PI_2).sin_cos();
+        for &x in &side {
+            let v = sub(points[x], pa);
+            let r = add(
+                add(scale(v, c), scale(cross(k, v), s)),
+                scale(k, dot(k, v) * (1.0 - c)),
+            );
+            points[x] = add(pa, r);
+        }
+    }
 }
 
 /// Move the two non-ring substituents of an sp3 ring atom (two ring bonds, four single bonds)
@@ -417,11 +635,7 @@ fn lift_sp3(mol: &Molecule, points: &mut [Point]) {
             .neighbours(a)
             .map(|(b, e)| (b.index(), e.index()))
             .collect();
-        if nb.len() != 4
-            || mol
-                .neighbours(a)
-                .any(|(_, e)| mol.bond(e).order != BondOrder::Single)
-        {
+        if nb.len() != 4 || !tetra_centre(mol, a) {
             continue;
         }
         let in_ring: Vec<usize> = nb
@@ -443,15 +657,9 @@ fn lift_sp3(mol: &Molecule, points: &mut [Point]) {
         let bis = unit(scale(add(u0, u1), -1.0));
         let normal = unit(cross(u0, u1));
         for (k, &s) in subs.iter().enumerate() {
-            let len = dist(points[s], pa);
             let sign = if k == 0 { 1.0 } else { -1.0 };
             let d = add(scale(bis, half.cos()), scale(normal, sign * half.sin()));
-            let target = add(pa, scale(d, len));
-            // Move the whole branch rigidly with its first atom.
-            let shift = sub(target, points[s]);
-            for b in branch(mol, a.index(), s) {
-                points[b] = add(points[b], shift);
-            }
+            swing_branch(mol, points, a.index(), s, d);
         }
     }
 }
@@ -590,9 +798,25 @@ pub fn with_hydrogens(mol: &Molecule, coords: &Coordinates) -> (Molecule, Coordi
                         dirs.push(add(scale(e0, ang.cos()), scale(p1, sgn * ang.sin())));
                     }
                 } else {
+                    // On an sp2/aromatic parent (N-methyl, aryl-methyl) one H stands
+                    // perpendicular to the parent's plane and none lies in it, so none points
+                    // at a peri or ortho hydrogen; elsewhere staggered against the reference.
+                    // (an amine N with an aromatic neighbour is planar too: its lone pair
+                    // conjugates)
+                    let pn = AtomIdx::new(nb);
+                    let parent_sp2 = mol.atom(pn).aromatic
+                        || mol
+                            .neighbours(pn)
+                            .any(|(_, bd)| mol.bond(bd).order == BondOrder::Double)
+                        || (mol.atom(pn).element == 7
+                            && mol.neighbours(pn).any(|(x, _)| mol.atom(x).aromatic));
+                    let start = if parent_sp2 && h == 3 {
+                        std::f64::consts::FRAC_PI_2
+                    } else {
+                        std::f64::consts::PI
+                    };
                     for k in 0..h {
-                        let phi =
-                            std::f64::consts::PI + 2.0 * std::f64::consts::PI * k as f64 / 3.0;
+                        let phi = start + 2.0 * std::f64::consts::PI * k as f64 / 3.0;
                         let q = add(scale(p1, phi.cos()), scale(p2, phi.sin()));
                         dirs.push(add(scale(e0, tet.cos()), scale(q, tet.sin())));
                     }

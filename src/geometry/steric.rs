@@ -73,3 +73,42 @@ pub fn side_repulsion(mol: &Molecule, coords: &Coordinates, side: &[bool]) -> f6
     }
     e * 4.184
 }
+
+/// Minimum distances (Å) of the clash check: non-bonded heavy atoms, and hydrogen pairs.
+pub const CLASH_HEAVY_MIN: f64 = 2.5;
+pub const CLASH_HH_MIN: f64 = 1.7;
+/// Heavy atoms exactly three bonds apart (1–4): their distance is set by two bond angles and a
+/// dihedral, and an eclipsed C–C–C–C with ideal angles is already about 2.5 Å; regular-polygon
+/// rings around sp3 centres (120° instead of ~111°) shave a little off. Limit 2.4 Å.
+pub const CLASH_HEAVY_14_MIN: f64 = 2.4;
+
+/// Pairs of atoms more than two bonds apart that are closer than [`CLASH_HEAVY_MIN`] (two
+/// non-hydrogen atoms; [`CLASH_HEAVY_14_MIN`] for 1–4 pairs) or [`CLASH_HH_MIN`] (two
+/// hydrogens), as (i, j, distance), i < j; for a
+/// molecule with explicit hydrogens. Heavy–hydrogen pairs are not checked (a rule of thumb of
+/// the trade for rigid-rotor geometries: the limits of the issue that asked for this check).
+pub fn clashes(mol: &Molecule, coords: &Coordinates) -> Vec<(usize, usize, f64)> {
+    let n = mol.atom_count();
+    let mut out = Vec::new();
+    for i in 0..n {
+        let zi = mol.atom(AtomIdx::new(i)).element;
+        let near = bond_distance(mol, i, 3);
+        for j in i + 1..n {
+            if near[j] <= 2 {
+                continue;
+            }
+            let zj = mol.atom(AtomIdx::new(j)).element;
+            let limit = match (zi == 1, zj == 1) {
+                (false, false) if near[j] == 3 => CLASH_HEAVY_14_MIN,
+                (false, false) => CLASH_HEAVY_MIN,
+                (true, true) => CLASH_HH_MIN,
+                _ => continue,
+            };
+            let r = dist(coords.points[i], coords.points[j]);
+            if r < limit {
+                out.push((i, j, r));
+            }
+        }
+    }
+    out
+}

@@ -343,7 +343,7 @@ pub const DAVIDSON_MIN_DIM: usize = 60;
 
 /// Residual norm (eV) at which a Davidson root counts as converged; the eigenvalue error is of
 /// the order of its square.
-const DAVIDSON_TOL: f64 = 1e-5;
+const DAVIDSON_TOL: f64 = 1e-4;
 
 /// The `k` lowest eigenpairs of the symmetric matrix `a`, ascending: full diagonalisation for
 /// small matrices, otherwise [`davidson`] on the dense matrix (falls back to the full

@@ -197,12 +197,36 @@ fn local_states(m: &Molecule, ppp: &PppParams) -> (f64, f64, f64, f64) {
 /// neighbour: the hubs of diarylamine / dialkylamine donors and triarylborane acceptors.
 fn is_hub(mol: &Molecule, typing: &super::typing::PiTyping, ring_atom: &[bool], a: usize) -> bool {
     !ring_atom[a]
-        && matches!(typing.sites[a], PiSite::Site("N2") | PiSite::Site("B"))
         && mol.degree(AtomIdx::new(a)) == 3
+        && (matches!(typing.sites[a], PiSite::Site("N2") | PiSite::Site("B"))
+            || is_carbonyl_hub(mol, typing, ring_atom, a))
 }
 
-/// Links (the bonds that twist): single, non-ring, non-aromatic bonds between two ring atoms,
-/// or between a ring atom and a hub (acyclic amine N or three-coordinate B in the π system).
+/// A diaryl ketone carbon (benzophenone-type): acyclic π carbon with a C=O and two ring
+/// neighbours. Its C–aryl bonds twist (crowded ortho hydrogens) but it is no unit boundary.
+fn is_carbonyl_hub(
+    mol: &Molecule,
+    typing: &super::typing::PiTyping,
+    ring_atom: &[bool],
+    a: usize,
+) -> bool {
+    let ai = AtomIdx::new(a);
+    !ring_atom[a]
+        && matches!(typing.sites[a], PiSite::Site("C"))
+        && mol.neighbours(ai).any(|(b, e)| {
+            mol.bond(e).order == crate::chem::BondOrder::Double
+                && matches!(typing.sites[b.index()], PiSite::Site("O1"))
+        })
+        && mol
+            .neighbours(ai)
+            .filter(|(b, _)| ring_atom[b.index()])
+            .count()
+            == 2
+}
+
+/// Links (the bonds that twist): single, non-ring, non-aromatic bonds between two π ring atoms,
+/// or between a π ring atom and a hub (acyclic amine N, three-coordinate B, or a diaryl ketone
+/// carbon in the π system).
 pub fn links(mol: &Molecule) -> Vec<(usize, usize)> {
     let ring = rings::ring_bonds(mol);
     let ra = rings::ring_atoms(mol, &ring);
@@ -214,8 +238,13 @@ pub fn links(mol: &Molecule) -> Vec<(usize, usize)> {
         .filter_map(|e| {
             let (a, b) = mol.graph.edge_endpoints(e).expect("edge exists");
             let (a, b) = (a.index(), b.index());
-            let ok = (ra[a] && (ra[b] || is_hub(mol, &typing, &ra, b)))
-                || (ra[b] && is_hub(mol, &typing, &ra, a));
+            // Both ends must carry a π orbital: a bond from an sp3 ring atom (the phenyls of
+            // a 9,9-diphenylacridan) is a steric rotor of the layout, not a conjugation link.
+            let pi = |x: usize| matches!(typing.sites[x], PiSite::Site(_));
+            let ok = pi(a)
+                && pi(b)
+                && ((ra[a] && (ra[b] || is_hub(mol, &typing, &ra, b)))
+                    || (ra[b] && is_hub(mol, &typing, &ra, a)));
             ok.then_some((a, b))
         })
         .collect()
@@ -269,6 +298,14 @@ pub fn partition(mol: &Molecule, ppp: &PppParams) -> Vec<usize> {
             .collect();
         nb.sort_unstable();
         nb.dedup();
+        if is_carbonyl_hub(mol, &typing, &ra, hub) {
+            // A ketone bridge belongs with both of its aryls.
+            for &u in &nb {
+                let (x, y) = (root(&mut parent, fine[hub]), root(&mut parent, u));
+                parent[y] = x;
+            }
+            continue;
+        }
         if nb.len() < 2 {
             continue;
         }
@@ -635,8 +672,9 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     // warm-started from the equilibrium density. Per-angle values are kept for rate averages.
     let (mut as1, mut at1, mut adest, mut af) = (s1, t1, s1 - t1, f1);
     let mut samples = Vec::new();
+    let mut skipped: Vec<(usize, f64)> = Vec::new();
     if p.twist_deg.is_none() && p.geometry.is_none() && !ls.is_empty() {
-        let (mut ss, mut tt, mut dd, mut ff) = (0.0, 0.0, 0.0, 0.0);
+        let (mut ss, mut tt, mut dd, mut ff, mut wsum) = (0.0, 0.0, 0.0, 0.0, 0.0);
         // Only S1 and T1 enter the averages: one root per multiplicity.
         let p1 = EstimateParams {
             n_states: 1,
@@ -658,7 +696,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
             for (theta, w) in kept {
                 let mut tw = eq.clone();
                 tw[k] = theta;
-                let snap = states_at(
+                let snap = match states_at(
                     mol,
                     &twisted(mol, &base, &ls, &tw),
                     ppp,
@@ -667,13 +705,21 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                     &p1,
                     true,
                     Some(at_eq.density.clone()),
-                )?;
+                ) {
+                    Ok(x) => x,
+                    Err(PiError::NotConverged { .. }) => {
+                        skipped.push((k, theta));
+                        continue;
+                    }
+                    Err(e) => return Err(e),
+                };
                 let (s, t, f) = (
                     snap.singlets[0].energy_ev,
                     snap.triplets[0].energy_ev,
                     snap.singlets[0].osc_strength,
                 );
                 let wl = w / acc / ls.len() as f64;
+                wsum += wl;
                 ss += wl * s;
                 tt += wl * t;
                 dd += wl * (s - t);
@@ -688,16 +734,46 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                 });
             }
         }
-        as1 = ss;
-        at1 = tt;
-        adest = dd;
-        af = ff;
+        // Renormalise (points whose SCF failed are left out).
+        if wsum > 0.0 {
+            as1 = ss / wsum;
+            at1 = tt / wsum;
+            adest = dd / wsum;
+            af = ff / wsum;
+        }
     }
     let raw_s1 = raw.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
     let raw_t1 = raw.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
     let le3 = at_eq.triplets.iter().find(|t| t.label == "LE");
     let unit_t1 = |u: Option<usize>| u.map(|u| units[u].local_t1_ev).filter(|x| x.is_finite());
-    let flags = estimate_flags(mol, &units, &link_info);
+    let mut flags = estimate_flags(mol, &units, &link_info);
+    let nan_scan: usize = link_info
+        .iter()
+        .map(|l| l.scan.iter().filter(|q| !q.1.is_finite()).count())
+        .sum();
+    if nan_scan > 0 || !skipped.is_empty() {
+        flags.push(format!(
+            "SCF did not converge at {} torsion-scan point(s) and {} averaging point(s) \
+             (near-degenerate frontier orbitals); they were left out",
+            nan_scan,
+            skipped.len()
+        ));
+    }
+    let (mh, ch) = crate::geometry::with_hydrogens(mol, &eq_coords);
+    let clash = crate::geometry::steric::clashes(&mh, &ch);
+    if !clash.is_empty() {
+        let (i, j, r) = clash[0];
+        flags.push(format!(
+            "clash: {} atom pair(s) of the equilibrium geometry closer than {} Å (heavy) / {} Å \
+             (H–H), e.g. atoms {} and {} at {r:.2} Å (hydrogens numbered after the heavy atoms); \
+             rigid units cannot relax, treat the twist and energies with care",
+            clash.len(),
+            crate::geometry::steric::CLASH_HEAVY_MIN,
+            crate::geometry::steric::CLASH_HH_MIN,
+            i + 1,
+            j + 1
+        ));
+    }
     Ok(Estimate {
         raw_s1_ev: raw_s1,
         raw_t1_ev: raw_t1,

@@ -21,6 +21,8 @@ pub struct ScfParams {
     /// converged solution unchanged. 0 = off. Without it, a failed run is retried once with
     /// `RETRY_LEVEL_SHIFT_EV`.
     pub level_shift: f64,
+    /// Density damping while iterating: P ← (1 − d)·P_new + d·P_old (0 = off).
+    pub damping: f64,
 }
 
 /// Level shift (eV) of the automatic retry of a non-converged SCF.
@@ -35,6 +37,7 @@ impl Default for ScfParams {
             diis_size: 8,
             initial_density: None,
             level_shift: 0.0,
+            damping: 0.0,
         }
     }
 }
@@ -121,17 +124,37 @@ fn density(c: &DMatrix<f64>, nocc: usize) -> DMatrix<f64> {
 /// An inconsistent model, an odd electron count, or no convergence within `max_iter` (the
 /// caller decides; a non-converged result is never returned as if it were good).
 pub fn scf(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
-    match scf_once(model, params) {
-        Err(PiError::NotConverged { .. }) if params.level_shift == 0.0 => scf_once(
-            model,
-            &ScfParams {
-                level_shift: RETRY_LEVEL_SHIFT_EV,
-                max_iter: params.max_iter * 2,
-                ..params.clone()
-            },
-        ),
-        r => r,
+    let first = scf_once(model, params);
+    if !matches!(first, Err(PiError::NotConverged { .. }))
+        || params.level_shift != 0.0
+        || params.damping != 0.0
+    {
+        return first;
     }
+    // Retries: a moderate level shift, then a large one with damping and no extrapolation
+    // (slow but steady for near-degenerate frontier orbitals).
+    let retry = scf_once(
+        model,
+        &ScfParams {
+            level_shift: RETRY_LEVEL_SHIFT_EV,
+            max_iter: params.max_iter * 2,
+            ..params.clone()
+        },
+    );
+    if !matches!(retry, Err(PiError::NotConverged { .. })) {
+        return retry;
+    }
+    scf_once(
+        model,
+        &ScfParams {
+            level_shift: 3.0 * RETRY_LEVEL_SHIFT_EV,
+            damping: 0.3,
+            diis_size: 0,
+            max_iter: params.max_iter * 5,
+            initial_density: None,
+            ..params.clone()
+        },
+    )
 }
 
 fn scf_once(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
@@ -175,7 +198,10 @@ fn scf_once(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> 
             f_use
         };
         let (_, c) = sorted_eigen(f_use);
-        let p_new = density(&c, nocc);
+        let mut p_new = density(&c, nocc);
+        if params.damping > 0.0 {
+            p_new = &p_new * (1.0 - params.damping) + &p * params.damping;
+        }
         let dp = (&p_new - &p).amax();
         let de = (e - e_old).abs();
         last = (de, dp);

@@ -88,15 +88,29 @@ pub fn raw_scan_with(
     let mut density = None;
     let mut pi_energy = |t: f64| -> Result<f64, PiError> {
         let built = build_model(mol, &place(t)?, ppp)?;
-        let r = scf(
+        let warm = density.take();
+        let had_warm = warm.is_some();
+        let mut r = scf(
             &built.model,
             &ScfParams {
-                initial_density: density.take(),
+                initial_density: warm,
                 ..ScfParams::default()
             },
-        )?;
-        density = Some(r.density);
-        Ok((r.e_elec + r.e_core) * EV_TO_KJ_PER_MOL)
+        );
+        if had_warm && matches!(r, Err(PiError::NotConverged { .. })) {
+            // A warm start can sit in the wrong basin: once more from the core guess.
+            r = scf(&built.model, &ScfParams::default());
+        }
+        match r {
+            Ok(r) => {
+                density = Some(r.density);
+                Ok((r.e_elec + r.e_core) * EV_TO_KJ_PER_MOL)
+            }
+            // An angle whose SCF does not converge is left out of the profile (NaN energy,
+            // zero weight) rather than failing the whole candidate.
+            Err(PiError::NotConverged { .. }) => Ok(f64::NAN),
+            Err(e) => Err(e),
+        }
     };
     let anchors: Vec<f64> = if interpolate {
         PI_ANCHORS
@@ -143,7 +157,12 @@ pub fn raw_scan_with(
 
 /// Combine a raw scan with the model's scales into a profile with Boltzmann weights.
 pub fn profile(raw: &[(f64, f64, f64)], tp: &TorsionParams) -> TorsionProfile {
-    let min_pi = raw.iter().map(|r| r.1).fold(f64::INFINITY, f64::min);
+    // Points with a NaN π energy (SCF not converged there) get zero weight.
+    let min_pi = raw
+        .iter()
+        .map(|r| r.1)
+        .filter(|x| x.is_finite())
+        .fold(f64::INFINITY, f64::min);
     let min_st = raw.iter().map(|r| r.2).fold(f64::INFINITY, f64::min);
     let mut points: Vec<TorsionPoint> = raw
         .iter()
@@ -163,9 +182,10 @@ pub fn profile(raw: &[(f64, f64, f64)], tp: &TorsionParams) -> TorsionProfile {
         p.e_total -= emin;
     }
     let rt = R_KJ_PER_MOL_K * tp.temperature_k;
-    let z: f64 = points.iter().map(|p| (-p.e_total / rt).exp()).sum();
+    let boltz = |e: f64| if e.is_finite() { (-e / rt).exp() } else { 0.0 };
+    let z: f64 = points.iter().map(|p| boltz(p.e_total)).sum();
     for p in points.iter_mut() {
-        p.weight = (-p.e_total / rt).exp() / z;
+        p.weight = if z > 0.0 { boltz(p.e_total) / z } else { 0.0 };
     }
     let k = (0..points.len())
         .min_by(|&i, &j| points[i].e_total.total_cmp(&points[j].e_total))
