@@ -32,19 +32,13 @@ pub fn characterise(
     n_units: usize,
 ) -> StateCharacter {
     let n = scf.coeffs.nrows();
-    let nv = cis.vir.len();
-    let mut t = DMatrix::<f64>::zeros(n, n);
-    for (ii, &i) in cis.occ.iter().enumerate() {
-        for (aa, &a) in cis.vir.iter().enumerate() {
-            let x = state.amplitudes[ii * nv + aa];
-            if x == 0.0 {
-                continue;
-            }
-            let ci = scf.coeffs.column(i);
-            let ca = scf.coeffs.column(a);
-            t += ci * ca.transpose() * x;
-        }
-    }
+    let (no, nv) = (cis.occ.len(), cis.vir.len());
+    // T = C_occ X C_virᵀ with X the amplitudes as an occupied × virtual matrix (row-major).
+    let co = scf.coeffs.select_columns(&cis.occ);
+    let cv = scf.coeffs.select_columns(&cis.vir);
+    let xm = DMatrix::from_row_slice(no, nv, state.amplitudes.as_slice());
+    let t = co * xm * cv.transpose();
+    debug_assert_eq!(t.shape(), (n, n));
     let mut omega = vec![vec![0.0; n_units]; n_units];
     for mu in 0..n {
         for nu in 0..n {
