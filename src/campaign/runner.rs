@@ -447,7 +447,7 @@ fn run_estimate(
         settings: stage,
         ppp: blake3::hash(params_text.as_bytes()).to_hex()[..16].to_string(),
         chunk_size: wf.chunk_size,
-        result_version: 1,
+        result_version: ESTIMATE_RECORD_VERSION,
     })
     .expect("serialisable");
     let param_hash = blake3::hash(key.as_bytes()).to_hex()[..16].to_string();
@@ -511,12 +511,29 @@ fn run_estimate(
     })
 }
 
-/// The stored record of one estimate (version 1; field names carry units).
+/// Version of the stored estimate record; part of the stage's parameter hash, so a store
+/// holding older records recomputes instead of mixing layouts (2: raw values, ³LE gaps,
+/// states, per-angle samples, validation and flags).
+pub const ESTIMATE_RECORD_VERSION: u32 = 2;
+
+/// The stored record of one estimate (field names carry units).
 fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
     let s1 = e.singlets.first();
     let t1 = e.triplets.first();
+    let states = |v: &[crate::pi::estimate::StateInfo]| -> Vec<serde_json::Value> {
+        v.iter()
+            .map(|s| {
+                serde_json::json!({
+                    "energy_ev": s.energy_ev,
+                    "osc_strength": s.osc_strength,
+                    "ct_number": s.ct_number,
+                    "label": s.label,
+                })
+            })
+            .collect()
+    };
     serde_json::json!({
-        "version": 1,
+        "version": ESTIMATE_RECORD_VERSION,
         "s1_ev": e.s1_ev,
         "t1_ev": e.t1_ev,
         "delta_est_ev": e.delta_est_ev,
@@ -525,6 +542,10 @@ fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
         "avg_t1_ev": e.avg_t1_ev,
         "avg_delta_est_ev": e.avg_delta_est_ev,
         "avg_osc_strength": e.avg_f_s1,
+        "raw_s1_ev": e.raw_s1_ev,
+        "raw_t1_ev": e.raw_t1_ev,
+        "lowest_3le_ev": e.lowest_3le_ev,
+        "s1_minus_3le_ev": e.s1_minus_3le_ev,
         "homo_ev": e.homo_ev,
         "lumo_ev": e.lumo_ev,
         "homo_lumo_overlap": e.homo_lumo_overlap,
@@ -533,7 +554,12 @@ fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
         "s1_ct_number": s1.map(|s| s.ct_number),
         "t1_label": t1.map(|s| s.label),
         "t1_ct_number": t1.map(|s| s.ct_number),
-        "flags": ["uncalibrated"],
+        "singlets": states(&e.singlets),
+        "triplets": states(&e.triplets),
+        "angle_samples": e.angle_samples,
+        "unvalidated": e.unvalidated,
+        "flags": e.flags,
+        "parameters": e.parameters,
     })
     .to_string()
 }

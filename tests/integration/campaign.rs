@@ -547,12 +547,28 @@ n_states = 4
         let v: serde_json::Value = serde_json::from_str(r).unwrap();
         let (s1, t1) = (v["s1_ev"].as_f64().unwrap(), v["t1_ev"].as_f64().unwrap());
         assert!(s1 > t1 && t1 > 0.0, "{r}");
-        // Every link (single bond between ring systems) sits at the fixed twist; a
-        // diphenylamino donor's N–aryl bonds are not ring-to-ring links (documented limit).
+        // Every link (between ring systems, and amine N–aryl bonds) sits at the fixed twist.
         for t in v["twists_deg"].as_array().unwrap() {
             assert_eq!(t.as_f64().unwrap(), 60.0);
         }
-        assert_eq!(v["flags"][0], "uncalibrated");
+        assert_eq!(
+            v["version"],
+            lumisift::campaign::runner::ESTIMATE_RECORD_VERSION
+        );
+        // The validation outcome of the shipped parameters travels with every record, and the
+        // raw (uncorrected) values are kept beside the corrected ones.
+        let unvalidated: Vec<&str> = v["unvalidated"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|x| x.as_str().unwrap())
+            .collect();
+        let expected = lumisift::pi::params::PppParams::default_set()
+            .validation
+            .failed();
+        assert_eq!(unvalidated, expected);
+        assert!(v["raw_t1_ev"].as_f64().unwrap() < t1, "{r}");
+        assert!(!v["singlets"].as_array().unwrap().is_empty());
     }
     // Running again does nothing new; other parameters add rows, never overwrite.
     let out = run(&wf, &[]);
