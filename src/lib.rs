@@ -15,6 +15,7 @@
 
 pub mod campaign;
 pub mod chem;
+pub mod colour;
 pub mod combine;
 pub mod fragments;
 pub mod geometry;

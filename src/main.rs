@@ -90,11 +90,44 @@ enum Command {
         #[arg(long, value_name = "FILE")]
         write_sdf: Option<PathBuf>,
     },
+    /// Colour of an emission spectrum or band: CIE 1931 x, y, CIE 1976 u′, v′, peak and
+    /// dominant wavelength, excitation purity, distance to a target.
+    Colour {
+        /// Spectrum CSV: wavelength_nm,intensity per line (# comments, optional header).
+        spectrum: Option<PathBuf>,
+        /// A Gaussian band in photon energy instead: PEAK_EV:FWHM_EV (e.g. 2.70:0.35).
+        #[arg(long, value_name = "PEAK_EV:FWHM_EV")]
+        band: Option<String>,
+        /// What the file's intensities are: photon counts or energy per nm.
+        #[arg(long, value_enum, default_value_t = SpectrumUnits::Photon)]
+        units: SpectrumUnits,
+        /// Colour target: bt2020-red|green|blue, bt709-red|green|blue, or X,Y.
+        #[arg(long)]
+        target: Option<String>,
+        /// White point for dominant wavelength and purity.
+        #[arg(long, value_enum, default_value_t = WhitePoint::D65)]
+        white: WhitePoint,
+        /// Output as JSON.
+        #[arg(long)]
+        json: bool,
+    },
     /// Fragment library tools.
     Fragments {
         #[command(subcommand)]
         command: FragmentsCommand,
     },
+}
+
+#[derive(Clone, Copy, clap::ValueEnum)]
+enum SpectrumUnits {
+    Photon,
+    Energy,
+}
+
+#[derive(Clone, Copy, clap::ValueEnum)]
+enum WhitePoint {
+    D65,
+    E,
 }
 
 #[derive(Subcommand)]
@@ -122,6 +155,21 @@ fn main() -> ExitCode {
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
         } => fragments_check(&paths),
+        Command::Colour {
+            spectrum,
+            band,
+            units,
+            target,
+            white,
+            json,
+        } => colour(
+            spectrum.as_deref(),
+            band.as_deref(),
+            units,
+            target,
+            white,
+            json,
+        ),
         Command::Inspect {
             smiles,
             twist,
@@ -394,6 +442,91 @@ fn inspect(
             "{}",
             page::render_text(smiles, &canonical, &est, temperature)
         );
+    }
+    ExitCode::SUCCESS
+}
+
+fn colour(
+    spectrum: Option<&Path>,
+    band: Option<&str>,
+    units: SpectrumUnits,
+    target: Option<String>,
+    white: WhitePoint,
+    json: bool,
+) -> ExitCode {
+    use lumisift::colour as col;
+    let (label, spec) = match (spectrum, band) {
+        (Some(_), Some(_)) | (None, None) => {
+            return fail("give a spectrum file or --band PEAK_EV:FWHM_EV (one of the two)");
+        }
+        (Some(path), None) => {
+            let units = match units {
+                SpectrumUnits::Photon => col::Units::Photon,
+                SpectrumUnits::Energy => col::Units::Energy,
+            };
+            match std::fs::read_to_string(path)
+                .map_err(|e| e.to_string())
+                .and_then(|t| col::parse_spectrum_csv(&t))
+                .and_then(|pts| col::Spectrum::new(&pts, units))
+            {
+                Ok(s) => (path.display().to_string(), s),
+                Err(e) => return fail(format!("{}: {e}", path.display())),
+            }
+        }
+        (None, Some(b)) => {
+            let parsed = b.split_once(':').and_then(|(p, w)| {
+                Some((p.trim().parse::<f64>().ok()?, w.trim().parse::<f64>().ok()?))
+            });
+            match parsed
+                .ok_or_else(|| format!("--band '{b}': expected PEAK_EV:FWHM_EV"))
+                .and_then(|(p, w)| col::gaussian_band(p, w))
+            {
+                Ok(s) => (format!("Gaussian band {b} eV"), s),
+                Err(e) => return fail(e),
+            }
+        }
+    };
+    let wp = match white {
+        WhitePoint::D65 => col::D65,
+        WhitePoint::E => col::WHITE_E,
+    };
+    let c = match col::analyse(&spec, wp) {
+        Ok(c) => c,
+        Err(e) => return fail(format!("{label}: {e}")),
+    };
+    let tgt = match target.as_deref().map(col::parse_target).transpose() {
+        Ok(t) => t,
+        Err(e) => return fail(e),
+    };
+    let dist = tgt.as_ref().map(|(_, xy)| col::delta_uv((c.x, c.y), *xy));
+    if json {
+        let out = serde_json::json!({
+            "source": label,
+            "colour": c,
+            "target": tgt.as_ref().map(|(n, xy)| serde_json::json!({"name": n, "x": xy.0, "y": xy.1, "delta_u_prime_v_prime": dist})),
+            "observer": "CIE 1931 2°",
+        });
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&out).expect("serialisable")
+        );
+    } else {
+        println!("{label}");
+        println!("  CIE 1931 2°   x {:.4}  y {:.4}", c.x, c.y);
+        println!("  CIE 1976 UCS  u′ {:.4}  v′ {:.4}", c.u_prime, c.v_prime);
+        println!("  peak {:.0} nm", c.peak_nm);
+        let dom = if c.dominant_nm < 0.0 {
+            format!("complementary {:.1} nm", -c.dominant_nm)
+        } else {
+            format!("{:.1} nm", c.dominant_nm)
+        };
+        println!(
+            "  dominant wavelength {dom}, excitation purity {:.3} (white {:.4}, {:.4})",
+            c.excitation_purity, wp.0, wp.1
+        );
+        if let (Some((n, xy)), Some(d)) = (&tgt, dist) {
+            println!("  target {n} ({:.4}, {:.4}): Δu′v′ {d:.4}", xy.0, xy.1);
+        }
     }
     ExitCode::SUCCESS
 }

@@ -238,3 +238,48 @@ fn inspect_writes_its_geometry_and_reads_it_back_with_xyz() {
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("promises 5 atoms"), "{err}");
 }
+
+#[test]
+fn colour_reports_chromaticity_of_a_band_and_of_a_spectrum_file() {
+    // The band 2.70:0.35 eV is one of the colour-science fixture bands (x 0.1410, y 0.0651).
+    let out = bin()
+        .args([
+            "colour",
+            "--band",
+            "2.70:0.35",
+            "--target",
+            "bt2020-blue",
+            "--json",
+        ])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!((v["colour"]["x"].as_f64().unwrap() - 0.1410).abs() < 1e-3);
+    assert!((v["colour"]["y"].as_f64().unwrap() - 0.0651).abs() < 1e-3);
+    let d = v["target"]["delta_u_prime_v_prime"].as_f64().unwrap();
+    assert!(d > 0.0 && d < 0.1, "{d}");
+    // A spectrum file with a header, read as photon counts (the default).
+    let f = temp_file(
+        "pl.csv",
+        "# PL\nwavelength_nm,counts\n500,0.2\n510,1\n520,0.3\n",
+    );
+    let out = bin()
+        .args(["colour", f.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    assert!(String::from_utf8_lossy(&out.stdout).contains("peak 510 nm"));
+    // A bad line is named.
+    let bad = temp_file("bad.csv", "500,0.2\n510,none\n");
+    let out = bin()
+        .args(["colour", bad.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("line 2"));
+}

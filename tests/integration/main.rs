@@ -6,6 +6,7 @@ mod proptests;
 
 mod aromaticity;
 mod campaign;
+mod colour;
 mod combine;
 mod fingerprints;
 mod geometry;
