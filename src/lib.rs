@@ -20,5 +20,6 @@ pub mod combine;
 pub mod fragments;
 pub mod geometry;
 pub mod model;
+pub mod photophysics;
 pub mod pi;
 pub mod report;

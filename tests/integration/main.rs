@@ -12,6 +12,7 @@ mod fingerprints;
 mod geometry;
 mod handbook;
 mod invalid_smiles;
+mod photophysics;
 mod pi_corrections;
 mod pi_engine;
 mod pi_physics;
