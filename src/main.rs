@@ -89,6 +89,21 @@ enum Command {
         /// Write the equilibrium geometry (with hydrogens) as an SDF record to this file.
         #[arg(long, value_name = "FILE")]
         write_sdf: Option<PathBuf>,
+        /// Refractive index of the host (radiative rate).
+        #[arg(long, default_value_t = 1.7)]
+        refractive_index: f64,
+        /// Non-radiative rate of S1 (s⁻¹); 0 = the efficiency is an upper bound.
+        #[arg(long, default_value_t = 0.0)]
+        knr_singlet: f64,
+        /// Non-radiative rate of T1 (s⁻¹).
+        #[arg(long, default_value_t = 0.0)]
+        knr_triplet: f64,
+        /// Stokes shift (eV) from vertical S1 to the emission peak.
+        #[arg(long, default_value_t = 0.25)]
+        stokes_shift: f64,
+        /// Emission band FWHM (eV).
+        #[arg(long, default_value_t = 0.40)]
+        fwhm: f64,
     },
     /// Colour of an emission spectrum or band: CIE 1931 x, y, CIE 1976 u′, v′, peak and
     /// dominant wavelength, excitation purity, distance to a target.
@@ -179,6 +194,11 @@ fn main() -> ExitCode {
             xyz,
             write_xyz,
             write_sdf,
+            refractive_index,
+            knr_singlet,
+            knr_triplet,
+            stokes_shift,
+            fwhm,
         } => inspect(
             &smiles,
             twist,
@@ -190,6 +210,19 @@ fn main() -> ExitCode {
                 write_xyz,
                 write_sdf,
             },
+            (
+                lumisift::photophysics::RateParams {
+                    refractive_index,
+                    temperature_k: temperature,
+                    k_nr_singlet: knr_singlet,
+                    k_nr_triplet: knr_triplet,
+                    ..Default::default()
+                },
+                lumisift::photophysics::BandParams {
+                    stokes_shift_ev: stokes_shift,
+                    fwhm_ev: fwhm,
+                },
+            ),
         ),
     }
 }
@@ -359,6 +392,10 @@ fn inspect(
     params: Option<&Path>,
     json: bool,
     files: InspectFiles,
+    (rates, band): (
+        lumisift::photophysics::RateParams,
+        lumisift::photophysics::BandParams,
+    ),
 ) -> ExitCode {
     use lumisift::pi::estimate::{EstimateParams, estimate};
     use lumisift::pi::params::PppParams;
@@ -430,9 +467,20 @@ fn inspect(
             return fail(format!("{}: {e}", path.display()));
         }
     }
+    let valid = rates.refractive_index >= 1.0
+        && rates.k_nr_singlet >= 0.0
+        && rates.k_nr_triplet >= 0.0
+        && band.fwhm_ev > 0.0
+        && band.stokes_shift_ev >= 0.0;
+    if !valid {
+        return fail(
+            "--refractive-index ≥ 1, --knr-singlet/--knr-triplet ≥ 0, --fwhm > 0, --stokes-shift ≥ 0",
+        );
+    }
+    let photo = lumisift::photophysics::assess(&est, &rates, &band);
     if json {
         let id = lumisift::chem::candidate_id(&canonical);
-        let out = page::to_json(smiles, &canonical, &id, &est, temperature);
+        let out = page::to_json(smiles, &canonical, &id, &est, &photo, temperature);
         println!(
             "{}",
             serde_json::to_string_pretty(&out).expect("serialisable")
@@ -442,6 +490,7 @@ fn inspect(
             "{}",
             page::render_text(smiles, &canonical, &est, temperature)
         );
+        print!("{}", page::render_photophysics(&photo, &est.unvalidated));
     }
     ExitCode::SUCCESS
 }

@@ -513,8 +513,9 @@ fn run_estimate(
 
 /// Version of the stored estimate record; part of the stage's parameter hash, so a store
 /// holding older records recomputes instead of mixing layouts (2: raw values, ³LE gaps,
-/// states, per-angle samples, validation and flags).
-pub const ESTIMATE_RECORD_VERSION: u32 = 2;
+/// states, per-angle samples, validation and flags; 3: photophysics with default rate and
+/// band settings).
+pub const ESTIMATE_RECORD_VERSION: u32 = 3;
 
 /// The stored record of one estimate (field names carry units).
 fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
@@ -560,6 +561,11 @@ fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
         "unvalidated": e.unvalidated,
         "flags": e.flags,
         "parameters": e.parameters,
+        "photophysics": crate::photophysics::assess(
+            e,
+            &crate::photophysics::RateParams::default(),
+            &crate::photophysics::BandParams::default(),
+        ),
     })
     .to_string()
 }

@@ -10,6 +10,10 @@
 //! (Dias et al., Methods Appl. Fluoresc. 5, 012001 (2017); Tsuchiya et al., J. Phys. Chem. A
 //! 125, 8074 (2021)); EQE = γ·η_exciton·Φ_PL·η_out (Kaji et al., Nat. Commun. 6, 8476 (2015)).
 
+pub mod assess;
+
+pub use assess::{Assessment, BandParams, assess};
+
 /// Elementary charge (C), electron mass (kg), vacuum permittivity (F/m), speed of light (m/s),
 /// ħ (eV·s), Boltzmann constant (eV/K), h·c (eV·cm): CODATA 2018.
 const E_CHARGE: f64 = 1.602_176_634e-19;
@@ -224,7 +228,10 @@ pub fn kinetics(rates: &Rates, p: &RateParams) -> Kinetics {
     let k_t = rates.k_risc + p.k_nr_triplet;
     let disc = ((k_s - k_t).powi(2) + 4.0 * rates.k_isc * rates.k_risc).sqrt();
     let lp = 0.5 * (k_s + k_t + disc);
-    let lm = 0.5 * (k_s + k_t - disc);
+    // λ− from the product of the roots (det = k_S k_T − k_ISC k_RISC): no cancellation when
+    // λ− ≪ λ+.
+    let det = k_s * k_t - rates.k_isc * rates.k_risc;
+    let lm = if lp > 0.0 { (det / lp).max(0.0) } else { 0.0 };
     let (a, b) = if lp > lm {
         ((k_s - lm) / (lp - lm), (lp - k_s) / (lp - lm))
     } else {

@@ -13,6 +13,90 @@ charge-transfer stabilisation fitted to a TDA-PBE0/6-31G reference set): screeni
 not predictions of measured values; n→π* states are not modelled. Quantities listed as \
 unvalidated missed the acceptance bar on the reference set and are not to be ranked on.";
 
+/// The photophysics part of the page.
+pub fn render_photophysics(a: &crate::photophysics::Assessment, unvalidated: &[String]) -> String {
+    let mut s = String::new();
+    let r = &a.rates_equilibrium;
+    let k = &a.kinetics;
+    let _ = writeln!(
+        s,
+        "\nphotophysics (n = {}, λ = {} eV, T = {} K; H_SO CT–CT {} / CT–LE {} / LE–LE {} cm⁻¹):",
+        a.rate_params.refractive_index,
+        a.rate_params.reorganisation_ev,
+        a.rate_params.temperature_k,
+        a.rate_params.soc_ct_ct_cm,
+        a.rate_params.soc_ct_le_cm,
+        a.rate_params.soc_le_le_cm
+    );
+    let _ = writeln!(
+        s,
+        "  thermalised manifolds at equilibrium: k_r {:.2e}  k_ISC {:.2e}  k_RISC {:.2e} s⁻¹",
+        r.k_r, r.k_isc, r.k_risc
+    );
+    let _ = writeln!(
+        s,
+        "  torsion-averaged (per angle): k_r {:.2e} s⁻¹ (log10 {:.2} ± {:.2}), k_RISC {:.2e} s⁻¹ (log10 {:.2} ± {:.2})",
+        a.k_r_averaged.mean,
+        a.k_r_averaged.log10_mean,
+        a.k_r_averaged.log10_sd,
+        a.k_risc_averaged.mean,
+        a.k_risc_averaged.log10_mean,
+        a.k_risc_averaged.log10_sd
+    );
+    let e = &a.rates_effective;
+    let _ = writeln!(
+        s,
+        "  effective (average + manifold extras): k_r {:.2e}  k_ISC {:.2e}  k_RISC {:.2e} s⁻¹",
+        e.k_r, e.k_isc, e.k_risc
+    );
+    let _ = writeln!(
+        s,
+        "  kinetics: τ_prompt {:.3e} s  τ_delayed {:.3e} s  Φ_PF {:.3}  Φ_DF {:.3}  Φ_PL {:.3}  triplet harvesting {:.3}",
+        k.tau_prompt_s,
+        k.tau_delayed_s,
+        k.phi_prompt,
+        k.phi_delayed,
+        k.phi_pl,
+        k.triplet_harvesting
+    );
+    let _ = writeln!(
+        s,
+        "  EQE upper bound {:.3} (charge balance {} × photons/exciton {:.3} × outcoupling {}){}",
+        k.eqe_bound,
+        a.rate_params.charge_balance,
+        k.el_photons_per_exciton,
+        a.rate_params.outcoupling,
+        if k.knr_zero_bound {
+            " — the k_nr = 0 bound: no non-radiative rate given"
+        } else {
+            ""
+        }
+    );
+    if let Some(c) = &a.colour {
+        let _ = writeln!(
+            s,
+            "  colour of the band (peak {:.2} eV = S1 − {} eV, FWHM {} eV): x {:.3} y {:.3}  u′ {:.3} v′ {:.3}  peak {:.0} nm  dominant {:.0} nm",
+            a.emission_peak_ev,
+            a.band.stokes_shift_ev,
+            a.band.fwhm_ev,
+            c.x,
+            c.y,
+            c.u_prime,
+            c.v_prime,
+            c.peak_nm,
+            c.dominant_nm
+        );
+    }
+    if !unvalidated.is_empty() {
+        let _ = writeln!(
+            s,
+            "  (rates and colour inherit the unvalidated quantities above: {})",
+            unvalidated.join(", ")
+        );
+    }
+    s
+}
+
 /// The human-readable page.
 pub fn render_text(input: &str, canonical: &str, est: &Estimate, temperature_k: f64) -> String {
     let mut s = String::new();
@@ -138,6 +222,7 @@ pub fn to_json(
     canonical: &str,
     candidate_id: &str,
     est: &Estimate,
+    photophysics: &crate::photophysics::Assessment,
     temperature_k: f64,
 ) -> serde_json::Value {
     serde_json::json!({
@@ -146,6 +231,7 @@ pub fn to_json(
         "candidate_id": candidate_id,
         "temperature_k": temperature_k,
         "estimate": est,
+        "photophysics": photophysics,
         "caution": CAUTION,
     })
 }

@@ -220,3 +220,36 @@ fn rates_are_averaged_per_angle_not_from_the_averaged_gap() {
     assert!(avg.mean > marcus_rate(0.5, 0.2, mean_gap, 300.0));
     assert!(avg.log10_sd > 0.1);
 }
+
+#[test]
+fn assessment_uses_torsion_averaged_rates_and_the_band_colour() {
+    use lumisift::colour::{D65, analyse, gaussian_band};
+    use lumisift::photophysics::{BandParams, assess};
+    use lumisift::pi::estimate::{EstimateParams, estimate};
+    use lumisift::pi::params::PppParams;
+    // A donor–acceptor pair: per-angle rates are averaged (the effective k_r is the weighted
+    // mean of the per-angle k_r, plus manifold extras that are never negative).
+    let m = lumisift::chem::parse_smiles("N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21").unwrap();
+    let est = estimate(&m, &PppParams::default_set(), &EstimateParams::default()).unwrap();
+    let p = RateParams::default();
+    let band = BandParams::default();
+    let a = assess(&est, &p, &band);
+    assert!(!est.angle_samples.is_empty());
+    assert!(a.rates_effective.k_r >= a.k_r_averaged.mean);
+    let n_links = est.links.len() as f64;
+    let manual: f64 = est
+        .angle_samples
+        .iter()
+        .map(|s| s.weight / n_links * radiative_rate(s.f_s1, s.s1_ev, p.refractive_index))
+        .sum();
+    assert!(close(a.k_r_averaged.mean, manual, 1e-9));
+    // Kinetics are those of the effective rates.
+    assert_eq!(a.kinetics, kinetics(&a.rates_effective, &p));
+    // Colour: the Gaussian band at S1 − Stokes shift.
+    let c = analyse(
+        &gaussian_band(est.s1_ev - band.stokes_shift_ev, band.fwhm_ev).unwrap(),
+        D65,
+    )
+    .unwrap();
+    assert_eq!(a.colour.unwrap(), c);
+}
