@@ -126,6 +126,33 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Förster transfer from a sensitiser to a terminal emitter: spectral overlap J, Förster
+    /// radius R₀, and efficiency and rate at a distance.
+    Forster {
+        /// Donor (sensitiser) emission CSV: wavelength_nm,intensity (used as given; photon
+        /// counts per nm is the usual convention), normalised to unit area here.
+        donor: PathBuf,
+        /// Acceptor (terminal emitter) absorption CSV: wavelength_nm,ε in M⁻¹ cm⁻¹.
+        acceptor: PathBuf,
+        /// Donor photoluminescence quantum yield.
+        #[arg(long, default_value_t = 1.0)]
+        phi_d: f64,
+        /// Refractive index of the medium.
+        #[arg(long, default_value_t = 1.7)]
+        n: f64,
+        /// Orientation factor κ² (2/3: isotropic, dynamically averaged).
+        #[arg(long, default_value_t = 2.0 / 3.0)]
+        kappa2: f64,
+        /// Donor–acceptor distance (nm) for efficiency and rate.
+        #[arg(long)]
+        distance: Option<f64>,
+        /// Unquenched donor lifetime (s) for the rate.
+        #[arg(long)]
+        tau_d: Option<f64>,
+        /// Output as JSON.
+        #[arg(long)]
+        json: bool,
+    },
     /// Fragment library tools.
     Fragments {
         #[command(subcommand)]
@@ -170,6 +197,16 @@ fn main() -> ExitCode {
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
         } => fragments_check(&paths),
+        Command::Forster {
+            donor,
+            acceptor,
+            phi_d,
+            n,
+            kappa2,
+            distance,
+            tau_d,
+            json,
+        } => forster(&donor, &acceptor, phi_d, n, kappa2, distance, tau_d, json),
         Command::Colour {
             spectrum,
             band,
@@ -491,6 +528,64 @@ fn inspect(
             page::render_text(smiles, &canonical, &est, temperature)
         );
         print!("{}", page::render_photophysics(&photo, &est.unvalidated));
+    }
+    ExitCode::SUCCESS
+}
+
+#[allow(clippy::too_many_arguments)]
+fn forster(
+    donor: &Path,
+    acceptor: &Path,
+    phi_d: f64,
+    n: f64,
+    kappa2: f64,
+    distance: Option<f64>,
+    tau_d: Option<f64>,
+    json: bool,
+) -> ExitCode {
+    use lumisift::colour::{Spectrum, Units, parse_spectrum_csv};
+    use lumisift::forster as fr;
+    if !((0.0..=1.0).contains(&phi_d) && n >= 1.0 && (0.0..=4.0).contains(&kappa2)) {
+        return fail("--phi-d in [0, 1], --n ≥ 1, --kappa2 in [0, 4]");
+    }
+    let read = |p: &Path| {
+        std::fs::read_to_string(p)
+            .map_err(|e| e.to_string())
+            .and_then(|t| parse_spectrum_csv(&t))
+            .and_then(|pts| Spectrum::new(&pts, Units::Energy))
+            .map_err(|e| format!("{}: {e}", p.display()))
+    };
+    let (d, a) = match (read(donor), read(acceptor)) {
+        (Ok(d), Ok(a)) => (d, a),
+        (Err(e), _) | (_, Err(e)) => return fail(e),
+    };
+    let j = match fr::overlap_integral(&d, &a) {
+        Ok(j) => j,
+        Err(e) => return fail(format!("{}: {e}", donor.display())),
+    };
+    let r0 = fr::forster_radius_nm(j, phi_d, n, kappa2);
+    let eff = distance.map(|r| fr::efficiency(r, r0));
+    let k = distance.zip(tau_d).map(|(r, t)| fr::rate(r, r0, t));
+    if json {
+        let out = serde_json::json!({
+            "overlap_integral_m1_cm1_nm4": j,
+            "forster_radius_nm": r0,
+            "phi_d": phi_d, "n": n, "kappa2": kappa2,
+            "distance_nm": distance, "efficiency": eff, "rate_s1": k,
+        });
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&out).expect("serialisable")
+        );
+    } else {
+        println!("overlap integral J = {j:.4e} M⁻¹ cm⁻¹ nm⁴");
+        println!("Förster radius R₀ = {r0:.3} nm (κ² {kappa2:.3}, Φ_D {phi_d}, n {n})");
+        if let (Some(r), Some(e)) = (distance, eff) {
+            println!("at r = {r} nm: transfer efficiency {e:.3}");
+        }
+        if let Some(k) = k {
+            println!("transfer rate {k:.3e} s⁻¹");
+        }
     }
     ExitCode::SUCCESS
 }

@@ -9,6 +9,7 @@ mod campaign;
 mod colour;
 mod combine;
 mod fingerprints;
+mod forster;
 mod geometry;
 mod handbook;
 mod invalid_smiles;
