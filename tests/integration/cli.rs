@@ -7,6 +7,17 @@ fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_lumisift"))
 }
 
+/// Run the binary, require success, parse its stdout as JSON.
+fn json_of(args: &[&str]) -> serde_json::Value {
+    let out = bin().args(args).output().unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
 fn temp_file(name: &str, text: &str) -> std::path::PathBuf {
     let dir = std::env::temp_dir().join(format!("lumisift-cli-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
@@ -104,16 +115,7 @@ fn molinfo_on_a_missing_file_says_so() {
 
 #[test]
 fn inspect_reports_units_torsion_and_states() {
-    let out = bin()
-        .args(["inspect", "N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21", "--json"])
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = json_of(&["inspect", "N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21", "--json"]);
     let est = &v["estimate"];
     // Two units: carbazole (donor, higher HOMO) and benzonitrile (acceptor, lower LUMO).
     let units = est["units"].as_array().unwrap();
@@ -183,16 +185,7 @@ fn inspect_writes_its_geometry_and_reads_it_back_with_xyz() {
     let dir = std::env::temp_dir().join(format!("lumisift-xyz-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let (xyz, sdf) = (dir.join("eq.xyz"), dir.join("eq.sdf"));
-    let run = |args: &[&str]| {
-        let out = bin().args(args).output().unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
-        serde_json::from_slice::<serde_json::Value>(&out.stdout).unwrap()
-    };
-    let a = run(&[
+    let a = json_of(&[
         "inspect",
         smi,
         "--json",
@@ -206,7 +199,7 @@ fn inspect_writes_its_geometry_and_reads_it_back_with_xyz() {
     assert_eq!(text.lines().next().unwrap().trim(), "33");
     let sdf_text = std::fs::read_to_string(&sdf).unwrap();
     assert!(sdf_text.contains("M  END") && sdf_text.contains(">  <S1_eV>"));
-    let b = run(&["inspect", smi, "--json", "--xyz", xyz.to_str().unwrap()]);
+    let b = json_of(&["inspect", smi, "--json", "--xyz", xyz.to_str().unwrap()]);
     let (ea, eb) = (&a["estimate"], &b["estimate"]);
     let twist_a = ea["links"][0]["equilibrium_deg"].as_f64().unwrap();
     let twist_b = eb["links"][0]["equilibrium_deg"].as_f64().unwrap();
@@ -242,23 +235,14 @@ fn inspect_writes_its_geometry_and_reads_it_back_with_xyz() {
 #[test]
 fn colour_reports_chromaticity_of_a_band_and_of_a_spectrum_file() {
     // The band 2.70:0.35 eV is one of the colour-science fixture bands (x 0.1410, y 0.0651).
-    let out = bin()
-        .args([
-            "colour",
-            "--band",
-            "2.70:0.35",
-            "--target",
-            "bt2020-blue",
-            "--json",
-        ])
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = json_of(&[
+        "colour",
+        "--band",
+        "2.70:0.35",
+        "--target",
+        "bt2020-blue",
+        "--json",
+    ]);
     assert!((v["colour"]["x"].as_f64().unwrap() - 0.1410).abs() < 1e-3);
     assert!((v["colour"]["y"].as_f64().unwrap() - 0.0651).abs() < 1e-3);
     let d = v["target"]["delta_u_prime_v_prime"].as_f64().unwrap();

@@ -12,35 +12,7 @@ fn fp(s: &str) -> lumisift::chem::Fingerprint {
     circular_fingerprint(&parse_smiles(s).unwrap(), FingerprintParams::default())
 }
 
-fn ranks(v: &[f64]) -> Vec<f64> {
-    let mut idx: Vec<usize> = (0..v.len()).collect();
-    idx.sort_by(|&a, &b| v[a].total_cmp(&v[b]));
-    let mut r = vec![0.0; v.len()];
-    let mut i = 0;
-    while i < idx.len() {
-        let mut j = i;
-        while j + 1 < idx.len() && v[idx[j + 1]] == v[idx[i]] {
-            j += 1;
-        }
-        let avg = (i + j) as f64 / 2.0;
-        for k in i..=j {
-            r[idx[k]] = avg;
-        }
-        i = j + 1;
-    }
-    r
-}
-
-/// Spearman's rank correlation (Pearson correlation of average ranks).
-fn spearman(x: &[f64], y: &[f64]) -> f64 {
-    let (rx, ry) = (ranks(x), ranks(y));
-    let n = x.len() as f64;
-    let (mx, my) = (rx.iter().sum::<f64>() / n, ry.iter().sum::<f64>() / n);
-    let cov: f64 = rx.iter().zip(&ry).map(|(a, b)| (a - mx) * (b - my)).sum();
-    let vx: f64 = rx.iter().map(|a| (a - mx).powi(2)).sum();
-    let vy: f64 = ry.iter().map(|b| (b - my).powi(2)).sum();
-    cov / (vx * vy).sqrt()
-}
+use crate::refset::spearman;
 
 #[test]
 fn tanimoto_ranks_pairs_like_rdkit_morgan() {

@@ -1,5 +1,8 @@
 //! One integration-test binary (faster to link on CI than many).
 
+#[path = "../support/refset.rs"]
+mod refset;
+
 mod cli;
 mod fixture_rdkit;
 mod proptests;

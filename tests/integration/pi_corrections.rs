@@ -6,8 +6,7 @@
 //! charge-transfer configuration the exchange integral vanishes under ZDO when the units are
 //! perpendicular (science.md a.1), so a correction built on exchange cannot move it.
 
-#[path = "../support/refset.rs"]
-mod refset;
+use crate::refset;
 
 use lumisift::chem::parse_smiles;
 use lumisift::pi::Corrections;
