@@ -495,14 +495,19 @@ fn swing_branch(mol: &Molecule, points: &mut [Point], a: usize, s: usize, dir: P
         }
         return;
     }
-    let k = scale(axis, 1.0 / sin);
-    for &x in &side {
-        let v = sub(points[x], pa);
+    rotate_atoms(points, &side, pa, scale(axis, 1.0 / sin), sin, cos);
+}
+
+/// Rotate the atoms `side` about the unit axis `k` through `origin` by the angle whose sine
+/// and cosine are given (Rodrigues' rotation formula).
+fn rotate_atoms(points: &mut [Point], side: &[usize], origin: Point, k: Point, sin: f64, cos: f64) {
+    for &x in side {
+        let v = sub(points[x], origin);
         let r = add(
             add(scale(v, cos), scale(cross(k, v), sin)),
             scale(k, dot(k, v) * (1.0 - cos)),
         );
-        points[x] = add(pa, r);
+        points[x] = add(origin, r);
     }
 }
 
@@ -614,14 +619,7 @@ fn spiro_perpendicular(mol: &Molecule, points: &mut [Point]) {
             unit(sub(points[ends[1]], pa)),
         ));
         let (s, c) = (std::f64::consts::FRAC_PI_2).sin_cos();
-        for &x in &side {
-            let v = sub(points[x], pa);
-            let r = add(
-                add(scale(v, c), scale(cross(k, v), s)),
-                scale(k, dot(k, v) * (1.0 - c)),
-            );
-            points[x] = add(pa, r);
-        }
+        rotate_atoms(points, &side, pa, k, s, c);
     }
 }
 
@@ -722,15 +720,7 @@ pub fn rotate_about_bond(
     let origin = points[a];
     let k = unit(sub(points[b], origin));
     let (s, c) = angle.sin_cos();
-    for &x in &side {
-        let v = sub(points[x], origin);
-        // Rodrigues' rotation formula.
-        let rotated = add(
-            add(scale(v, c), scale(cross(k, v), s)),
-            scale(k, dot(k, v) * (1.0 - c)),
-        );
-        points[x] = add(origin, rotated);
-    }
+    rotate_atoms(points, &side, origin, k, s, c);
     true
 }
 
