@@ -62,6 +62,10 @@ enum Command {
         /// Also write `SMILES<TAB>id` lines to this file.
         #[arg(long)]
         smi: Option<PathBuf>,
+        /// Also write the stored estimates (π tier, rates, kinetics, colour; one row per
+        /// candidate and parameter set) as CSV to this file.
+        #[arg(long)]
+        estimates: Option<PathBuf>,
     },
     /// One molecule in depth: units and their roles, torsion of each link, excited states
     /// (S1, T1, ΔEST, f, charge-transfer character) at the equilibrium twist, torsion averages.
@@ -193,7 +197,12 @@ fn main() -> ExitCode {
             no_bar,
         } => run(&workflow, shard.as_deref(), store, threads, no_bar),
         Command::Merge { out, shards } => merge(&out, &shards),
-        Command::Export { store, csv, smi } => export(&store, csv, smi),
+        Command::Export {
+            store,
+            csv,
+            smi,
+            estimates,
+        } => export(&store, csv, smi, estimates),
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
         } => fragments_check(&paths),
@@ -380,7 +389,12 @@ fn merge(out: &Path, shards: &[PathBuf]) -> ExitCode {
     }
 }
 
-fn export(store: &Path, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode {
+fn export(
+    store: &Path,
+    csv: Option<PathBuf>,
+    smi: Option<PathBuf>,
+    estimates: Option<PathBuf>,
+) -> ExitCode {
     let st = match campaign::store::Store::open_existing(store) {
         Ok(s) => s,
         Err(e) => return fail(e),
@@ -401,6 +415,17 @@ fn export(store: &Path, csv: Option<PathBuf>, smi: Option<PathBuf>) -> ExitCode 
         Ok(n) => n,
         Err(e) => return fail(e),
     };
+    if let Some(p) = &estimates {
+        let r = std::fs::File::create(p)
+            .map_err(|e| format!("{}: {e}", p.display()))
+            .and_then(|f| {
+                lumisift::report::export::estimates_csv(conn, std::io::BufWriter::new(f))
+            });
+        match r {
+            Ok(k) => eprintln!("exported {k} estimate rows to {}", p.display()),
+            Err(e) => return fail(e),
+        }
+    }
     if let Some(p) = &smi {
         let r = std::fs::File::create(p)
             .map_err(|e| format!("{}: {e}", p.display()))

@@ -110,3 +110,120 @@ fn for_each_candidate(
     }
     Ok(())
 }
+
+/// Columns of [`estimates_csv`], in order.
+pub const ESTIMATE_COLUMNS: [&str; 26] = [
+    "id",
+    "canonical_smiles",
+    "param_hash",
+    "record_version",
+    "s1_ev",
+    "t1_ev",
+    "delta_est_ev",
+    "f_s1",
+    "avg_s1_ev",
+    "avg_t1_ev",
+    "avg_delta_est_ev",
+    "avg_f_s1",
+    "s1_label",
+    "t1_label",
+    "s1_minus_3le_ev",
+    "k_r_s1",
+    "k_isc_s1",
+    "k_risc_s1",
+    "tau_prompt_s",
+    "tau_delayed_s",
+    "phi_pl",
+    "eqe_bound",
+    "cie_x",
+    "cie_y",
+    "unvalidated",
+    "flags_or_error",
+];
+
+/// Write every stored estimate (one row per candidate and parameter set, sorted), flattening
+/// the record into [`ESTIMATE_COLUMNS`]; fields a record lacks (older versions, failed
+/// candidates) are left empty and a failure's reason goes in the last column.
+pub fn estimates_csv<W: Write>(conn: &Connection, out: W) -> Result<u64, String> {
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record(ESTIMATE_COLUMNS)
+        .map_err(|e| e.to_string())?;
+    let mut st = conn
+        .prepare(
+            "SELECT r.candidate_id, c.canonical_smiles, r.param_hash, r.data
+             FROM results r JOIN candidates c ON c.id = r.candidate_id
+             WHERE r.stage = 'estimate' ORDER BY r.candidate_id, r.param_hash",
+        )
+        .map_err(|e| e.to_string())?;
+    let mut rows = st.query([]).map_err(|e| e.to_string())?;
+    let mut n = 0;
+    while let Some(r) = rows.next().map_err(|e| e.to_string())? {
+        let (id, smi, hash, data): (String, String, String, String) = (
+            r.get(0).map_err(|e| e.to_string())?,
+            r.get(1).map_err(|e| e.to_string())?,
+            r.get(2).map_err(|e| e.to_string())?,
+            r.get(3).map_err(|e| e.to_string())?,
+        );
+        let v: serde_json::Value =
+            serde_json::from_str(&data).map_err(|e| format!("{id}: stored record: {e}"))?;
+        let num = |p: &str| -> String {
+            v.pointer(p)
+                .and_then(|x| x.as_f64())
+                .map(|x| format!("{x:.6e}"))
+                .unwrap_or_default()
+        };
+        let text = |p: &str| -> String {
+            v.pointer(p)
+                .and_then(|x| x.as_str())
+                .map(str::to_string)
+                .unwrap_or_default()
+        };
+        let list = |p: &str| -> String {
+            v.pointer(p)
+                .and_then(|x| x.as_array())
+                .map(|a| {
+                    a.iter()
+                        .filter_map(|s| s.as_str())
+                        .collect::<Vec<_>>()
+                        .join("; ")
+                })
+                .unwrap_or_default()
+        };
+        let last = match v.get("error").and_then(|e| e.as_str()) {
+            Some(e) => format!("error: {e}"),
+            None => list("/flags"),
+        };
+        w.write_record([
+            id,
+            smi,
+            hash,
+            v.get("version").map(|x| x.to_string()).unwrap_or_default(),
+            num("/s1_ev"),
+            num("/t1_ev"),
+            num("/delta_est_ev"),
+            num("/osc_strength"),
+            num("/avg_s1_ev"),
+            num("/avg_t1_ev"),
+            num("/avg_delta_est_ev"),
+            num("/avg_osc_strength"),
+            text("/s1_label"),
+            text("/t1_label"),
+            num("/s1_minus_3le_ev"),
+            num("/photophysics/rates_effective/k_r"),
+            num("/photophysics/rates_effective/k_isc"),
+            num("/photophysics/rates_effective/k_risc"),
+            num("/photophysics/kinetics/tau_prompt_s"),
+            num("/photophysics/kinetics/tau_delayed_s"),
+            num("/photophysics/kinetics/phi_pl"),
+            num("/photophysics/kinetics/eqe_bound"),
+            num("/photophysics/colour/x"),
+            num("/photophysics/colour/y"),
+            list("/unvalidated"),
+            last,
+        ])
+        .map_err(|e| e.to_string())?;
+        n += 1;
+    }
+    w.flush().map_err(|e| e.to_string())?;
+    Ok(n)
+}

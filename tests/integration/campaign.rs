@@ -570,6 +570,35 @@ n_states = 4
         assert!(v["raw_t1_ev"].as_f64().unwrap() < t1, "{r}");
         assert!(!v["singlets"].as_array().unwrap().is_empty());
     }
+    // `export --estimates` flattens the records: one row per candidate, the π-tier numbers,
+    // rates and colour filled in.
+    let est_csv = d.join("estimates.csv");
+    let out = bin()
+        .args(["export"])
+        .arg(d.join("store.sqlite"))
+        .arg("--estimates")
+        .arg(&est_csv)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let mut rd = csv::Reader::from_path(&est_csv).unwrap();
+    let header: Vec<String> = rd.headers().unwrap().iter().map(String::from).collect();
+    assert_eq!(header, lumisift::report::export::ESTIMATE_COLUMNS);
+    let recs: Vec<csv::StringRecord> = rd.records().map(|r| r.unwrap()).collect();
+    assert_eq!(recs.len(), 4);
+    for r in &recs {
+        for col in ["s1_ev", "k_r_s1", "tau_prompt_s", "cie_x", "cie_y"] {
+            let k = header.iter().position(|h| h == col).unwrap();
+            let x: f64 = r[k]
+                .parse()
+                .unwrap_or_else(|_| panic!("{col} empty: {r:?}"));
+            assert!(x.is_finite() && x > 0.0, "{col} = {x}");
+        }
+    }
     // Running again does nothing new; other parameters add rows, never overwrite.
     let out = run(&wf, &[]);
     assert!(String::from_utf8_lossy(&out.stderr).contains("2 already done, 0 written"));
