@@ -230,8 +230,14 @@ pub fn spectral_locus(nm: f64) -> (f64, f64) {
 pub fn analyse(spec: &Spectrum, white: (f64, f64)) -> Result<Colour, String> {
     let c = cie1931();
     let (mut x, mut y, mut z) = (0.0, 0.0, 0.0);
+    // A spectrum already on the table's grid (bands) is read directly.
+    let on_grid = spec.wavelength_nm.len() == c.len() && spec.wavelength_nm[0] == c.start_nm;
     for i in 0..c.len() {
-        let p = spec.at(c.wavelength(i));
+        let p = if on_grid {
+            spec.power[i]
+        } else {
+            spec.at(c.wavelength(i))
+        };
         x += p * c.xbar[i];
         y += p * c.ybar[i];
         z += p * c.zbar[i];
@@ -280,7 +286,8 @@ fn dominant(x: f64, y: f64, w: (f64, f64)) -> (f64, f64) {
         return (f64::NAN, 0.0);
     }
     let n = c.len();
-    let locus: Vec<(f64, f64)> = (0..n).map(|i| spectral_locus(c.wavelength(i))).collect();
+    static LOCUS: OnceLock<Vec<(f64, f64)>> = OnceLock::new();
+    let locus = LOCUS.get_or_init(|| (0..n).map(|i| spectral_locus(c.wavelength(i))).collect());
     let hit = |dir: (f64, f64)| -> Option<(f64, f64)> {
         // (t, wavelength) of the first locus segment the ray meets.
         let mut best: Option<(f64, f64)> = None;
