@@ -483,10 +483,15 @@ fn run_estimate(
                     .map_err(|e| format!("SMILES: {e}"))
                     .and_then(|m| estimate(&m, &ppp, &ep).map_err(|e| e.to_string()));
                 match out {
-                    Ok(est) => (id.clone(), estimate_record(&est), true),
+                    Ok(est) => (
+                        id.clone(),
+                        estimate_record(&est, &stage.rates, &stage.band),
+                        true,
+                    ),
                     Err(e) => (
                         id.clone(),
-                        serde_json::json!({ "version": 1, "error": e }).to_string(),
+                        serde_json::json!({ "version": ESTIMATE_RECORD_VERSION, "error": e })
+                            .to_string(),
                         false,
                     ),
                 }
@@ -518,7 +523,11 @@ fn run_estimate(
 pub const ESTIMATE_RECORD_VERSION: u32 = 3;
 
 /// The stored record of one estimate (field names carry units).
-fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
+fn estimate_record(
+    e: &crate::pi::estimate::Estimate,
+    rates: &crate::photophysics::RateParams,
+    band: &crate::photophysics::BandParams,
+) -> String {
     let s1 = e.singlets.first();
     let t1 = e.triplets.first();
     let states = |v: &[crate::pi::estimate::StateInfo]| -> Vec<serde_json::Value> {
@@ -561,11 +570,7 @@ fn estimate_record(e: &crate::pi::estimate::Estimate) -> String {
         "unvalidated": e.unvalidated,
         "flags": e.flags,
         "parameters": e.parameters,
-        "photophysics": crate::photophysics::assess(
-            e,
-            &crate::photophysics::RateParams::default(),
-            &crate::photophysics::BandParams::default(),
-        ),
+        "photophysics": crate::photophysics::assess(e, rates, band),
     })
     .to_string()
 }

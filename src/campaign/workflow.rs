@@ -34,6 +34,20 @@
 //! scan_step_deg = 15.0              # torsion scan step (divides 180)
 //! n_states = 6                      # states per multiplicity
 //! # params = "my-ppp.toml"          # PPP parameter file (default: the shipped set)
+//! [estimate.rates]                  # photophysics stored with each estimate (defaults shown)
+//! refractive_index = 1.7
+//! reorganisation_ev = 0.2
+//! soc_ct_ct_cm = 0.05               # ⟨¹CT|H_SO|³CT⟩
+//! soc_ct_le_cm = 0.5                # ⟨¹CT|H_SO|³LE⟩
+//! soc_le_le_cm = 0.1
+//! manifold_kt = 3.0                 # thermalised manifolds: states within 3 k_BT
+//! k_nr_singlet = 0.0                # s⁻¹; 0 = efficiencies are upper bounds
+//! k_nr_triplet = 0.0
+//! charge_balance = 1.0
+//! outcoupling = 0.2
+//! [estimate.band]
+//! stokes_shift_ev = 0.25
+//! fwhm_ev = 0.40
 //! ```
 //!
 //! Unknown keys are rejected with the line where they stand.
@@ -69,6 +83,10 @@ struct RawEstimate {
     n_states: usize,
     #[serde(default)]
     params: Option<PathBuf>,
+    #[serde(default)]
+    rates: crate::photophysics::RateParams,
+    #[serde(default)]
+    band: crate::photophysics::BandParams,
 }
 
 fn default_temperature() -> f64 {
@@ -90,6 +108,10 @@ pub struct EstimateStage {
     pub n_states: usize,
     /// A parameter file; None = the shipped set.
     pub params: Option<PathBuf>,
+    /// Rate model and emission band for the photophysics stored with each estimate (the rate
+    /// temperature is always the estimate's).
+    pub rates: crate::photophysics::RateParams,
+    pub band: crate::photophysics::BandParams,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -316,6 +338,8 @@ impl Workflow {
                         scan_step_deg: 15.0,
                         n_states: 6,
                         params: None,
+                        rates: crate::photophysics::RateParams::default(),
+                        band: crate::photophysics::BandParams::default(),
                     })
                 } else {
                     None
@@ -341,6 +365,11 @@ impl Workflow {
                     scan_step_deg: e.scan_step_deg,
                     n_states: e.n_states,
                     params: e.params.map(|p| resolve(&p)),
+                    rates: crate::photophysics::RateParams {
+                        temperature_k: e.temperature_k,
+                        ..e.rates
+                    },
+                    band: e.band,
                 })
             }
         };

@@ -415,6 +415,13 @@ fn bad_workflows_and_stores_are_refused_without_damage() {
         "architectures = [\"D-A\"]\n",
     );
     expect_error(&["run", wf3.to_str().unwrap()], &["/nonexistent/frags"]);
+    // A typo in the rate model of the estimate stage is named too.
+    let wf4 = small(
+        "rates.toml",
+        &shipped,
+        "architectures = [\"D-A\"]\n[estimate]\n[estimate.rates]\nrefractive_indx = 1.8\n",
+    );
+    expect_error(&["run", wf4.to_str().unwrap()], &["refractive_indx"]);
 
     // A corrupt file and a foreign SQLite database as the store: refused, bytes unchanged.
     let good = workflow(&d, 16, "");
