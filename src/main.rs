@@ -157,6 +157,24 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Rank sensitiser–emitter pairs: every estimated candidate of a store (its stored emission
+    /// band as the donor) against terminal emitters' absorption spectra, by Förster radius.
+    Pairs {
+        store: PathBuf,
+        /// Absorption CSV files (wavelength_nm, ε in M⁻¹ cm⁻¹), one per terminal emitter; the
+        /// file stem names it.
+        #[arg(required = true)]
+        emitters: Vec<PathBuf>,
+        /// Orientation factor κ² (default 2/3).
+        #[arg(long)]
+        kappa2: Option<f64>,
+        /// How many pairs to print.
+        #[arg(long, default_value_t = 20)]
+        top: usize,
+        /// Output as JSON.
+        #[arg(long)]
+        json: bool,
+    },
     /// Fragment library tools.
     Fragments {
         #[command(subcommand)]
@@ -216,6 +234,13 @@ fn main() -> ExitCode {
             tau_d,
             json,
         } => forster(&donor, &acceptor, phi_d, n, kappa2, distance, tau_d, json),
+        Command::Pairs {
+            store,
+            emitters,
+            kappa2,
+            top,
+            json,
+        } => pairs(&store, &emitters, kappa2, top, json),
         Command::Colour {
             spectrum,
             band,
@@ -553,6 +578,77 @@ fn inspect(
             page::render_text(smiles, &canonical, &est, temperature)
         );
         print!("{}", page::render_photophysics(&photo, &est.unvalidated));
+    }
+    ExitCode::SUCCESS
+}
+
+fn pairs(
+    store: &Path,
+    emitters: &[PathBuf],
+    kappa2: Option<f64>,
+    top: usize,
+    json: bool,
+) -> ExitCode {
+    use lumisift::colour::{Spectrum, Units, parse_spectrum_csv};
+    if kappa2.is_some_and(|k| !(0.0..=4.0).contains(&k)) {
+        return fail("--kappa2 in [0, 4]");
+    }
+    let mut specs = Vec::new();
+    for p in emitters {
+        match std::fs::read_to_string(p)
+            .map_err(|e| e.to_string())
+            .and_then(|t| parse_spectrum_csv(&t))
+            .and_then(|pts| Spectrum::new(&pts, Units::Energy))
+        {
+            Ok(s) => specs.push((
+                p.file_stem()
+                    .map_or_else(|| p.display().to_string(), |s| s.to_string_lossy().into()),
+                s,
+            )),
+            Err(e) => return fail(format!("{}: {e}", p.display())),
+        }
+    }
+    let st = match campaign::store::Store::open_existing(store) {
+        Ok(s) => s,
+        Err(e) => return fail(e),
+    };
+    let (ranked, skipped) =
+        match lumisift::report::pairs::rank_pairs(st.connection(), &specs, kappa2) {
+            Ok(x) => x,
+            Err(e) => return fail(format!("{}: {e}", store.display())),
+        };
+    if skipped > 0 {
+        eprintln!(
+            "{skipped} estimate records without photophysics (older layout or failed) skipped"
+        );
+    }
+    let shown: Vec<_> = ranked.iter().take(top).collect();
+    if json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&shown).expect("serialisable")
+        );
+    } else {
+        println!(
+            "{:>4} {:>7} {:>10} {:>6} {:<24} {:<34} unvalidated",
+            "rank", "R0/nm", "J", "Φ_D", "emitter", "sensitiser id"
+        );
+        for (k, p) in shown.iter().enumerate() {
+            println!(
+                "{:>4} {:>7.2} {:>10.3e} {:>6.3} {:<24} {:<34} {}",
+                k + 1,
+                p.r0_nm,
+                p.overlap_m1_cm1_nm4,
+                p.phi_d,
+                p.emitter,
+                p.candidate_id,
+                p.unvalidated.join(",")
+            );
+        }
+        println!(
+            "R₀ from the stored emission band and PL-yield bound of each sensitiser (estimates, not \
+             measurements)."
+        );
     }
     ExitCode::SUCCESS
 }

@@ -3,3 +3,4 @@
 pub mod export;
 pub mod inspect;
 pub mod molinfo;
+pub mod pairs;

@@ -606,6 +606,66 @@ n_states = 4
             assert!(x.is_finite() && x > 0.0, "{col} = {x}");
         }
     }
+    // `pairs`: each estimated candidate as a sensitiser (its stored band) against two terminal
+    // emitters; the one absorbing where the sensitisers emit ranks above the far-red one, and
+    // R₀ is the Förster radius of the stored band with the stored PL-yield bound.
+    let blue_abs = d.join("absorbs-blue.csv");
+    std::fs::write(
+        &blue_abs,
+        "330,50000
+600,50000
+",
+    )
+    .unwrap();
+    let red_abs = d.join("absorbs-red.csv");
+    std::fs::write(
+        &red_abs,
+        "750,50000
+820,50000
+",
+    )
+    .unwrap();
+    let out = bin()
+        .arg("pairs")
+        .arg(d.join("store.sqlite"))
+        .arg(&blue_abs)
+        .arg(&red_abs)
+        .arg("--json")
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let pairs: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let pairs = pairs.as_array().unwrap();
+    assert_eq!(pairs.len(), 8);
+    assert!(pairs[..4].iter().all(|p| p["emitter"] == "absorbs-blue"));
+    assert!(
+        pairs
+            .windows(2)
+            .all(|w| w[0]["r0_nm"].as_f64() >= w[1]["r0_nm"].as_f64())
+    );
+    let p0 = &pairs[0];
+    let band = lumisift::colour::gaussian_band(
+        p0["sensitiser_peak_ev"].as_f64().unwrap(),
+        lumisift::photophysics::BandParams::default().fwhm_ev,
+    )
+    .unwrap();
+    let eps = lumisift::colour::Spectrum::new(
+        &[(330.0, 5e4), (600.0, 5e4)],
+        lumisift::colour::Units::Energy,
+    )
+    .unwrap();
+    let j = lumisift::forster::overlap_integral(&band, &eps).unwrap();
+    let r0 = lumisift::forster::forster_radius_nm(
+        j,
+        p0["phi_d"].as_f64().unwrap(),
+        lumisift::photophysics::RateParams::default().refractive_index,
+        2.0 / 3.0,
+    );
+    assert!((p0["r0_nm"].as_f64().unwrap() - r0).abs() < 1e-9);
     // Running again does nothing new; other parameters add rows, never overwrite.
     let out = run(&wf, &[]);
     assert!(String::from_utf8_lossy(&out.stderr).contains("2 already done, 0 written"));
