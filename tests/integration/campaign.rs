@@ -12,6 +12,21 @@ fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_lumisift"))
 }
 
+/// Run the binary with `args` and require success.
+fn succeed<I, S>(args: I) -> std::process::Output
+where
+    I: IntoIterator<Item = S>,
+    S: AsRef<std::ffi::OsStr>,
+{
+    let out = bin().args(args).output().unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out
+}
+
 static COUNTER: AtomicUsize = AtomicUsize::new(0);
 
 fn temp_dir(tag: &str) -> PathBuf {
@@ -183,20 +198,14 @@ fn export_writes_candidates_with_sorted_provenance() {
     run(&wf, &[]);
     let csv_path = d.join("out.csv");
     let smi_path = d.join("out.smi");
-    let out = bin()
-        .arg("export")
-        .arg(d.join("store.sqlite"))
-        .arg("--csv")
-        .arg(&csv_path)
-        .arg("--smi")
-        .arg(&smi_path)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    succeed([
+        "export".as_ref(),
+        d.join("store.sqlite").as_os_str(),
+        "--csv".as_ref(),
+        csv_path.as_os_str(),
+        "--smi".as_ref(),
+        smi_path.as_os_str(),
+    ]);
     let mut rdr = csv::Reader::from_path(&csv_path).unwrap();
     let mut n = 0;
     let mut multi = 0;
@@ -580,18 +589,12 @@ n_states = 4
     // `export --estimates` flattens the records: one row per candidate, the π-tier numbers,
     // rates and colour filled in.
     let est_csv = d.join("estimates.csv");
-    let out = bin()
-        .args(["export"])
-        .arg(d.join("store.sqlite"))
-        .arg("--estimates")
-        .arg(&est_csv)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    succeed([
+        "export".as_ref(),
+        d.join("store.sqlite").as_os_str(),
+        "--estimates".as_ref(),
+        est_csv.as_os_str(),
+    ]);
     let mut rd = csv::Reader::from_path(&est_csv).unwrap();
     let header: Vec<String> = rd.headers().unwrap().iter().map(String::from).collect();
     assert_eq!(header, lumisift::report::export::ESTIMATE_COLUMNS);
@@ -625,19 +628,13 @@ n_states = 4
 ",
     )
     .unwrap();
-    let out = bin()
-        .arg("pairs")
-        .arg(d.join("store.sqlite"))
-        .arg(&blue_abs)
-        .arg(&red_abs)
-        .arg("--json")
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    let out = succeed([
+        "pairs".as_ref(),
+        d.join("store.sqlite").as_os_str(),
+        blue_abs.as_os_str(),
+        red_abs.as_os_str(),
+        "--json".as_ref(),
+    ]);
     let pairs: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let pairs = pairs.as_array().unwrap();
     assert_eq!(pairs.len(), 8);
