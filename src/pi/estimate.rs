@@ -746,7 +746,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     let raw_t1 = raw.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
     let le3 = at_eq.triplets.iter().find(|t| t.label == "LE");
     let unit_t1 = |u: Option<usize>| u.map(|u| units[u].local_t1_ev).filter(|x| x.is_finite());
-    let mut flags = estimate_flags(mol, &units, &link_info);
+    let mut flags = estimate_flags(mol, &typing, &units, &link_info);
     let nan_scan: usize = link_info
         .iter()
         .map(|l| l.scan.iter().filter(|q| !q.1.is_finite()).count())
@@ -813,11 +813,15 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
 }
 
 /// Warnings on what the π model cannot see or where it is exact for the wrong reason.
-fn estimate_flags(mol: &Molecule, units: &[UnitInfo], links: &[LinkInfo]) -> Vec<String> {
+fn estimate_flags(
+    mol: &Molecule,
+    typing: &super::typing::PiTyping,
+    units: &[UnitInfo],
+    links: &[LinkInfo],
+) -> Vec<String> {
     let mut flags = Vec::new();
     // n→π*: aromatic aza N and carbonyl/thione heteroatoms carry in-plane lone pairs whose
     // n→π* states lie near or below the lowest π→π* state in azines and ketones.
-    let typing = perceive(mol);
     for (u, unit) in units.iter().enumerate() {
         let lone: Vec<usize> = unit
             .atoms
