@@ -17,6 +17,7 @@ pub mod campaign;
 pub mod chem;
 pub mod colour;
 pub mod combine;
+pub mod fast;
 pub mod forster;
 pub mod fragments;
 pub mod geometry;

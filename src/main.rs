@@ -339,6 +339,19 @@ fn run(
             ExitCode::SUCCESS
         }
         Ok(s) => {
+            if let Some(sc) = &s.screen {
+                eprintln!(
+                    "screen: {} tuples scored by the fast tier ({} without a donor–acceptor path); {} passed (log10 k_TADF ≥ {:.2}; {} with a fragment outside the fitted set); cards {:.2} s, scoring {:.2} s ({:.0} tuples/s incl. enumeration)",
+                    sc.scored,
+                    sc.no_path,
+                    sc.passed,
+                    sc.threshold_merit,
+                    sc.passed_unseen_fragment,
+                    sc.cards_s,
+                    sc.scoring_s,
+                    (sc.scored + sc.no_path) as f64 / sc.scoring_s.max(1e-9)
+                );
+            }
             let c = &s.counts;
             eprintln!(
                 "enumerate: {} assignments considered, {} symmetry-equivalent, rejected: {} by mol weight, {} by heavy atoms, {} forbidden pairs, {} pairs not allowed; {} admitted, {} selected",

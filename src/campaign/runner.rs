@@ -18,7 +18,7 @@ use serde::Serialize;
 
 use super::error::CampaignError;
 use super::store::{Chunk, Store, TupleRow};
-use super::workflow::{EnumerateStage, Workflow};
+use super::workflow::{EnumerateStage, ScreenStage, Workflow};
 use crate::chem::{candidate_id, canonical_smiles, props};
 use crate::combine::{Counts, Enumerator, Tuple, TupleEvent, assemble};
 use crate::fragments::{Library, load_paths};
@@ -90,9 +90,27 @@ pub struct EstimateSummary {
     pub elapsed_s: f64,
 }
 
+/// What the fast-tier screen did.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct ScreenSummary {
+    /// Admitted tuples the fast tier scored (those with a donor–acceptor path).
+    pub scored: u64,
+    /// Admitted tuples without a donor–acceptor path (never passed).
+    pub no_path: u64,
+    pub passed: u64,
+    /// Lowest log10 k_TADF (s⁻¹) among the passed tuples.
+    pub threshold_merit: f64,
+    /// Passed tuples with a fragment the fast model was not fitted on.
+    pub passed_unseen_fragment: u64,
+    /// Card computation (s) and scoring pass (s).
+    pub cards_s: f64,
+    pub scoring_s: f64,
+}
+
 /// What a run did.
 #[derive(Debug, Clone, Default, Serialize)]
 pub struct RunSummary {
+    pub screen: Option<ScreenSummary>,
     pub estimate: Option<EstimateSummary>,
     pub counts: Counts,
     /// Admitted tuples after sampling / the candidate cap.
@@ -113,6 +131,8 @@ pub struct RunSummary {
 struct ParamKey<'a> {
     stage: &'static str,
     enumerate: &'a EnumerateStage,
+    /// The screen's settings and a hash of its model text, when it selects the tuples.
+    screen: Option<(&'a ScreenStage, String)>,
     chunk_size: usize,
     library: String,
     canonicaliser: u32,
@@ -200,9 +220,20 @@ fn run_enumerate(
         path: wf.path.clone(),
         message: format!("enumerate: {m}"),
     })?;
+    let screen = wf
+        .screen
+        .as_ref()
+        .filter(|_| wf.stages.iter().any(|s| s == "screen"));
+    let screen_model = match screen {
+        Some(sc) => Some(load_screen_model(wf, sc)?),
+        None => None,
+    };
     let key = ParamKey {
         stage: "enumerate",
         enumerate: stage,
+        screen: screen
+            .zip(screen_model.as_ref())
+            .map(|(sc, (_, text))| (sc, blake3::hash(text.as_bytes()).to_hex()[..16].to_string())),
         chunk_size: wf.chunk_size,
         library: lib.content_hash(),
         canonicaliser: crate::chem::CANONICALISER_VERSION,
@@ -216,7 +247,12 @@ fn run_enumerate(
         counts.record(&e);
         ControlFlow::Continue(())
     });
-    let selection = if stage.sample > 0 {
+    let mut screen_summary = None;
+    let selection = if let (Some(sc), Some((model, _))) = (screen, &screen_model) {
+        let (bits, summary) = screen_select(&en, lib, sc, model, counts.admitted, opts)?;
+        screen_summary = Some(summary);
+        Selection::Sample(bits)
+    } else if stage.sample > 0 {
         Selection::Sample(floyd_sample(counts.admitted, stage.sample, stage.seed))
     } else if stage.max_candidates > 0 {
         Selection::First(stage.max_candidates)
@@ -239,6 +275,10 @@ fn run_enumerate(
     store.record_run(&wf.path, &wf.text, &params_json, &shard_label)?;
     let counts_json = serde_json::to_string(&counts).expect("counts serialise");
     store.set_stage_status("enumerate", &param_hash, chunks_total, &counts_json)?;
+    if let Some(sm) = &screen_summary {
+        let json = serde_json::to_string(sm).expect("summary serialises");
+        store.set_stage_status("screen", &param_hash, 0, &json)?;
+    }
     let done = store.done_chunks("enumerate", &param_hash)?;
     let owned = |c: u64| opts.shard.is_none_or(|s| s.owns(c));
     let chunks_this_shard = (0..chunks_total).filter(|&c| owned(c)).count() as u64;
@@ -315,6 +355,7 @@ fn run_enumerate(
     }
     let (store_candidates, store_tuples) = store.totals()?;
     Ok(RunSummary {
+        screen: screen_summary,
         estimate: None,
         counts,
         selected,
@@ -327,6 +368,137 @@ fn run_enumerate(
         store_tuples,
         elapsed_s: started.elapsed().as_secs_f64(),
     })
+}
+
+/// The fast-tier model a screen uses (parsed) and its text (for the parameter hash).
+fn load_screen_model(
+    wf: &Workflow,
+    sc: &ScreenStage,
+) -> Result<(crate::fast::FastModel, String), CampaignError> {
+    let text = match &sc.model {
+        None => crate::fast::model::DEFAULT_MODEL.to_string(),
+        Some(p) => std::fs::read_to_string(p).map_err(|e| CampaignError::Workflow {
+            path: wf.path.clone(),
+            message: format!("screen.model {}: {e}", p.display()),
+        })?,
+    };
+    let model = crate::fast::FastModel::parse(&text).map_err(|e| CampaignError::Workflow {
+        path: wf.path.clone(),
+        message: format!("screen.model: {e}"),
+    })?;
+    Ok((model, text))
+}
+
+/// Total order on (merit, ordinal) for the screen's heap: larger merit first, then the
+/// earlier tuple (deterministic under ties).
+#[derive(Clone, Copy, PartialEq)]
+struct Ranked {
+    merit: f64,
+    ordinal: u64,
+}
+
+impl Eq for Ranked {}
+
+impl PartialOrd for Ranked {
+    fn partial_cmp(&self, o: &Self) -> Option<std::cmp::Ordering> {
+        Some(self.cmp(o))
+    }
+}
+
+impl Ord for Ranked {
+    /// "Greater" = better.
+    fn cmp(&self, o: &Self) -> std::cmp::Ordering {
+        self.merit
+            .total_cmp(&o.merit)
+            .then_with(|| o.ordinal.cmp(&self.ordinal))
+    }
+}
+
+/// The fast tier over every admitted tuple: cards for the library (in parallel), then one
+/// streaming pass keeping the best ⌈pass_fraction · admitted⌉ tuples in a bounded heap
+/// (memory: the heap, not the library). Returns the kept ordinals as a bit set.
+fn screen_select(
+    en: &Enumerator,
+    lib: &Library,
+    sc: &ScreenStage,
+    model: &crate::fast::FastModel,
+    admitted: u64,
+    opts: &RunOptions,
+) -> Result<(Vec<u64>, ScreenSummary), CampaignError> {
+    use std::cmp::Reverse;
+    use std::collections::BinaryHeap;
+    let t0 = Instant::now();
+    let ppp = crate::pi::params::PppParams::default_set();
+    let cards: Vec<_> = lib
+        .fragments
+        .par_iter()
+        .map(|f| crate::fast::fragment_card(f, &ppp))
+        .collect::<Result<_, _>>()
+        .map_err(|e| CampaignError::Other(format!("screen: fragment cards: {e}")))?;
+    let tp = crate::pi::torsion::TorsionParams {
+        conjugation_scale: ppp.torsion.conjugation_scale,
+        steric_scale: ppp.torsion.steric_scale,
+        temperature_k: sc.temperature_k,
+    };
+    let reference = crate::fast::reference_profile(&ppp)
+        .ok_or_else(|| CampaignError::Other("screen: the phenyl probe scan failed".into()))?;
+    let set = crate::fast::CardSet::new(cards, &reference, &tp);
+    let bound = model.bind(&set, sc.refractive_index, sc.temperature_k);
+    let cards_s = t0.elapsed().as_secs_f64();
+    let t1 = Instant::now();
+    let keep = ((admitted as f64 * sc.pass_fraction).ceil() as u64).max(1) as usize;
+    let mut heap: BinaryHeap<Reverse<(Ranked, bool)>> = BinaryHeap::with_capacity(keep + 1);
+    let (mut scored, mut no_path, mut ordinal) = (0u64, 0u64, 0u64);
+    if opts.progress != Progress::Quiet {
+        eprintln!(
+            "screen: fast tier over {admitted} admitted tuples, keeping the best {keep} by log10 k_TADF"
+        );
+    }
+    en.for_each(|e| {
+        let TupleEvent::Admitted(t) = e else {
+            return ControlFlow::Continue(());
+        };
+        let o = ordinal;
+        ordinal += 1;
+        match bound.predict(&set, &t) {
+            None => no_path += 1,
+            Some(fe) => {
+                scored += 1;
+                let r = Ranked {
+                    merit: fe.merit,
+                    ordinal: o,
+                };
+                if heap.len() < keep {
+                    heap.push(Reverse((r, fe.unseen_fragment)));
+                } else if heap.peek().is_some_and(|w| r > w.0.0) {
+                    heap.pop();
+                    heap.push(Reverse((r, fe.unseen_fragment)));
+                }
+            }
+        }
+        ControlFlow::Continue(())
+    });
+    let mut bits = vec![0u64; admitted.div_ceil(64) as usize];
+    let mut threshold = f64::INFINITY;
+    let mut unseen = 0;
+    let passed = heap.len() as u64;
+    for Reverse((r, u)) in heap {
+        bits[(r.ordinal / 64) as usize] |= 1 << (r.ordinal % 64);
+        threshold = threshold.min(r.merit);
+        unseen += u as u64;
+    }
+    Ok((
+        bits,
+        ScreenSummary {
+            scored,
+            no_path,
+            passed,
+            threshold_merit: threshold,
+            passed_unseen_fragment: unseen,
+            cards_s,
+            scoring_s: t1.elapsed().as_secs_f64(),
+        },
+    ))
 }
 
 /// Assemble, canonicalise and describe one tuple.

@@ -28,6 +28,10 @@
 //! [enumerate.bridges]
 //!
 //!
+//! [screen]                          # fast fragment tier (stage "screen", before "enumerate")
+//! pass_fraction = 0.01              # build and estimate only the best 1 % of tuples
+//! # model = "my-fast-tier.toml"     # fitted model (default: the shipped data/fast-tier.toml)
+//!
 //! [estimate]                        # π-tier estimate of every candidate in the store
 //! temperature_k = 300.0             # Boltzmann distribution over twists
 //! # twist_deg = 60.0                # fix every link instead of the torsion model
@@ -68,6 +72,34 @@ struct RawWorkflow {
     enumerate: Option<RawEnumerate>,
     #[serde(default)]
     estimate: Option<RawEstimate>,
+    #[serde(default)]
+    screen: Option<RawScreen>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawScreen {
+    #[serde(default = "default_pass_fraction")]
+    pass_fraction: f64,
+    #[serde(default)]
+    model: Option<PathBuf>,
+}
+
+fn default_pass_fraction() -> f64 {
+    0.01
+}
+
+/// Settings of the fast-tier screen, resolved. When the stage "screen" is listed, the
+/// enumeration builds only the tuples the fast tier ranks in its best `pass_fraction` (by
+/// log10 k_TADF), instead of all, the first N or a sample.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ScreenStage {
+    pub pass_fraction: f64,
+    /// A fitted model file; None = the shipped `data/fast-tier.toml`.
+    pub model: Option<PathBuf>,
+    /// Temperature (K) and refractive index of the merit: the estimate stage's values.
+    pub temperature_k: f64,
+    pub refractive_index: f64,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -214,10 +246,11 @@ pub struct Workflow {
     pub chunk_size: usize,
     pub enumerate: Option<EnumerateStage>,
     pub estimate: Option<EstimateStage>,
+    pub screen: Option<ScreenStage>,
 }
 
-/// Stages this version runs.
-pub const KNOWN_STAGES: &[&str] = &["enumerate", "estimate"];
+/// Stages this version runs ("screen" selects what "enumerate" builds).
+pub const KNOWN_STAGES: &[&str] = &["screen", "enumerate", "estimate"];
 
 impl Workflow {
     pub fn load(path: &Path) -> Result<Workflow, CampaignError> {
@@ -373,6 +406,46 @@ impl Workflow {
                 })
             }
         };
+        let listed = |name: &str| raw.campaign.stages.iter().any(|s| s == name);
+        let screen = if listed("screen") || raw.screen.is_some() {
+            let r = raw.screen.clone().unwrap_or(RawScreen {
+                pass_fraction: default_pass_fraction(),
+                model: None,
+            });
+            if !(r.pass_fraction > 0.0 && r.pass_fraction <= 1.0) {
+                return Err(err(format!(
+                    "screen.pass_fraction must lie in (0, 1], found {}",
+                    r.pass_fraction
+                )));
+            }
+            if listed("screen") {
+                if !listed("enumerate") {
+                    return Err(err(
+                        "stage 'screen' selects what 'enumerate' builds: list both".into(),
+                    ));
+                }
+                if let Some(e) = &enumerate
+                    && (e.sample > 0 || e.max_candidates > 0)
+                {
+                    return Err(err(
+                        "stage 'screen' replaces enumerate.sample and enumerate.max_candidates: \
+                         set them to 0"
+                            .into(),
+                    ));
+                }
+            }
+            Some(ScreenStage {
+                pass_fraction: r.pass_fraction,
+                model: r.model.map(|p| resolve(&p)),
+                temperature_k: estimate.as_ref().map_or(300.0, |e| e.temperature_k),
+                refractive_index: estimate.as_ref().map_or(
+                    crate::photophysics::RateParams::default().refractive_index,
+                    |e| e.rates.refractive_index,
+                ),
+            })
+        } else {
+            None
+        };
         Ok(Workflow {
             path: path.to_path_buf(),
             text: text.to_string(),
@@ -383,6 +456,7 @@ impl Workflow {
             chunk_size: raw.campaign.chunk_size,
             enumerate,
             estimate,
+            screen,
         })
     }
 }

@@ -71,6 +71,77 @@ impl Tuple {
         )
     }
 
+    /// Read a tuple back from its [`key`](Tuple::key) (as stored in a campaign's provenance).
+    /// Fragment ids must exist in `lib`; the site count must match the core's.
+    pub fn parse_key(lib: &Library, key: &str) -> Result<Tuple, String> {
+        let mut parts = key.splitn(3, '|');
+        let (arch, core, sites) = match (parts.next(), parts.next(), parts.next()) {
+            (Some(a), Some(c), Some(s)) => (a, c, s),
+            _ => {
+                return Err(format!(
+                    "tuple key '{key}': expected ARCHITECTURE|CORE|SITES"
+                ));
+            }
+        };
+        let architecture = Architecture::parse(arch)
+            .ok_or_else(|| format!("tuple key '{key}': unknown architecture '{arch}'"))?;
+        let idx = |id: &str| {
+            lib.index_of(id)
+                .ok_or_else(|| format!("tuple key '{key}': fragment '{id}' is not in the library"))
+        };
+        let core = idx(core)?;
+        let mut arms = Vec::new();
+        for (n, item) in sites.split(' ').enumerate() {
+            let (site, arm) = item
+                .split_once(':')
+                .ok_or_else(|| format!("tuple key '{key}': site '{item}' lacks 'N:'"))?;
+            if site.parse::<usize>().ok() != Some(n + 1) {
+                return Err(format!(
+                    "tuple key '{key}': site {} expected, found '{site}'",
+                    n + 1
+                ));
+            }
+            arms.push(if arm == "H" {
+                Arm::H
+            } else if let Some(p) = arm.find("]>") {
+                // Ids may contain brackets but never '>': the bridge site is the bracket
+                // closed by the only "]>".
+                let open = arm[..p]
+                    .rfind('[')
+                    .ok_or_else(|| format!("tuple key '{key}': bridged arm '{arm}' malformed"))?;
+                let (bridge, cs, terminal) = (&arm[..open], &arm[open + 1..p], &arm[p + 2..]);
+                let core_site = match cs {
+                    "1" => 0,
+                    "2" => 1,
+                    _ => {
+                        return Err(format!(
+                            "tuple key '{key}': bridge site '{cs}' is not 1 or 2"
+                        ));
+                    }
+                };
+                Arm::Bridged {
+                    bridge: idx(bridge)?,
+                    core_site,
+                    terminal: idx(terminal)?,
+                }
+            } else {
+                Arm::Terminal(idx(arm)?)
+            });
+        }
+        if arms.len() != lib.fragments[core].site_count() {
+            return Err(format!(
+                "tuple key '{key}': {} arms for a core with {} sites",
+                arms.len(),
+                lib.fragments[core].site_count()
+            ));
+        }
+        Ok(Tuple {
+            architecture,
+            core,
+            arms,
+        })
+    }
+
     /// Fragment indices in slot order: core, then each arm's fragments.
     pub fn fragment_indices(&self) -> Vec<usize> {
         let mut v = vec![self.core];

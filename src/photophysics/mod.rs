@@ -36,6 +36,19 @@ pub fn radiative_rate(f: f64, energy_ev: f64, n: f64) -> f64 {
         * n
 }
 
+/// log10 of the delayed-fluorescence rate in the pre-equilibrium limit (s⁻¹):
+/// k_TADF = k_r · ⅓ · exp(−max(ΔE_ST, 0)/k_BT), with k_r = [`radiative_rate`]. With S1 and T1
+/// in fast equilibrium the singlet share of the pair is ⅓·exp(−ΔE_ST/k_BT) (three triplet
+/// sublevels, the detailed balance of science.md c.2), and that share emits at k_r. A single
+/// figure that rewards a small gap only together with a bright S1 (a dark, perpendicular
+/// molecule with ΔE_ST = 0 scores low), used to order tuples in the screening cascade.
+/// `f` is floored at 10⁻⁴ (below that a state counts as dark).
+pub fn log10_tadf_rate(s1_ev: f64, delta_est_ev: f64, f: f64, n: f64, t_k: f64) -> f64 {
+    radiative_rate(f.max(1e-4), s1_ev, n).log10()
+        - 3f64.log10()
+        - delta_est_ev.max(0.0) / (K_B_EV * t_k * std::f64::consts::LN_10)
+}
+
 /// Marcus rate (s⁻¹) for a spin-forbidden transition with coupling `h_so_cm` (cm⁻¹),
 /// reorganisation energy `lambda_ev`, energy *rise* `delta_ev` from initial to final state
 /// (positive = uphill, e.g. T1→S1 with ΔEST > 0) and temperature `t_k`.

@@ -164,8 +164,10 @@ pub struct Estimate {
     pub parameters: String,
 }
 
-/// Lowest singlet and triplet (eV) of a small molecule with corrected CIS, or NaN.
-fn local_states(m: &Molecule, ppp: &PppParams) -> (f64, f64, f64, f64) {
+/// HOMO and LUMO energies, lowest singlet and lowest triplet (all eV) of a small molecule at its
+/// planar layout with corrected CIS, or NaN where the SCF fails: the levels of a unit (or of a
+/// fragment capped with hydrogen) on its own.
+pub fn local_states(m: &Molecule, ppp: &PppParams) -> (f64, f64, f64, f64) {
     let r = build_model(m, &layout(m), ppp).and_then(|b| {
         let r = scf(&b.model, &ScfParams::default())?;
         let x = cis(

@@ -11,6 +11,7 @@ mod aromaticity;
 mod campaign;
 mod colour;
 mod combine;
+mod fast_tier;
 mod fingerprints;
 mod forster;
 mod geometry;

@@ -1,0 +1,310 @@
+//! Fragment cards: what the fast tier knows of each fragment, from the fragment's own π
+//! calculation, computed once per library.
+//!
+//! - **Levels**: the fragment capped with hydrogen at every site, planar layout, PPP-SCF orbital
+//!   energies (HOMO, LUMO) and the lowest singlet and triplet by corrected CIS — the same
+//!   numbers the π tier computes for a unit on its own (`pi::estimate::local_states`).
+//! - **Site torsion profile** (the steric class of an attachment, as numbers rather than a
+//!   label): the fragment joined through that site to a phenyl probe (other sites capped with
+//!   hydrogen), raw π and steric energies along the twist (0–180° every 15°, π energy at 30°
+//!   anchors interpolated in cos²θ, exactly as the π tier scans a link).
+//! - **Pair twists**: for two sites joined in a tuple, the link's profile is approximated by
+//!   additivity of the two sides against the probe, E_XY(θ) ≈ E_X–Ph(θ) + E_Y–Ph(θ) −
+//!   E_Ph–Ph(θ) for each of the two raw terms, then scaled and Boltzmann-weighted with the π
+//!   tier's torsion parameters. The equilibrium twist and ⟨cos²θ⟩ of every site pair are
+//!   tabulated once, so a tuple costs table look-ups.
+
+use crate::combine::{Arm, Tuple, assemble};
+use crate::fragments::{Fragment, Library};
+use crate::geometry::{layout, rotate_about_bond};
+use crate::model::{Architecture, Role};
+use crate::pi::build::build_model;
+use crate::pi::estimate::local_states;
+use crate::pi::params::PppParams;
+use crate::pi::torsion::{TorsionParams, profile, raw_scan_with};
+use crate::pi::{ScfParams, scf};
+
+/// Twist grid of the site profiles (degrees): 0, 15, …, 180.
+pub const GRID_DEG: [f64; 13] = [
+    0.0, 15.0, 30.0, 45.0, 60.0, 75.0, 90.0, 105.0, 120.0, 135.0, 150.0, 165.0, 180.0,
+];
+
+/// SMILES of the probe every site is joined to: phenyl.
+pub const PROBE_SMILES: &str = "[*:1]c1ccccc1";
+
+/// Raw π and steric energies (kJ/mol, unscaled) of a site joined to the probe, on [`GRID_DEG`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct SiteProfile {
+    pub e_pi: [f64; 13],
+    pub e_steric: [f64; 13],
+}
+
+/// One fragment's card.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FragmentCard {
+    pub id: String,
+    pub role: Role,
+    pub homo_ev: f64,
+    pub lumo_ev: f64,
+    pub s1_ev: f64,
+    pub t1_ev: f64,
+    /// Heavy atoms (without dummies): a size descriptor.
+    pub heavy_atoms: usize,
+    /// One profile per site, in site order; None where the probe scan failed (the pair twist
+    /// then falls back to the probe reference, i.e. a biphenyl-like link).
+    pub sites: Vec<Option<SiteProfile>>,
+    /// Per site: squared HOMO and LUMO coefficients at the anchor atom (summed over orbitals
+    /// within [`DEGENERATE_EV`] of the frontier one; 0 when the anchor carries no π orbital).
+    /// Through-bond coupling across a link scales with these: a donor whose HOMO has a node at
+    /// its nitrogen couples weakly whatever the twist.
+    pub anchor_homo2: Vec<f64>,
+    pub anchor_lumo2: Vec<f64>,
+}
+
+/// Orbitals within this energy (eV) of the HOMO (LUMO) count as degenerate with it.
+pub const DEGENERATE_EV: f64 = 0.05;
+
+/// Squared frontier coefficients at the anchor of every site of `capped` (the fragment with its
+/// dummies removed: atom indices shift down past each dummy).
+fn anchor_amplitudes(
+    f: &Fragment,
+    capped: &crate::chem::Molecule,
+    ppp: &PppParams,
+) -> (Vec<f64>, Vec<f64>) {
+    let zero = (vec![0.0; f.site_count()], vec![0.0; f.site_count()]);
+    let Ok(built) = build_model(capped, &layout(capped), ppp) else {
+        return zero;
+    };
+    let Ok(r) = scf(&built.model, &ScfParams::default()) else {
+        return zero;
+    };
+    if r.nocc == 0 || r.nocc >= r.energies.len() {
+        return zero;
+    }
+    let (h, l) = (r.energies[r.nocc - 1], r.energies[r.nocc]);
+    let homos: Vec<usize> = (0..r.nocc)
+        .filter(|&k| (r.energies[k] - h).abs() < DEGENERATE_EV)
+        .collect();
+    let lumos: Vec<usize> = (r.nocc..r.energies.len())
+        .filter(|&k| (r.energies[k] - l).abs() < DEGENERATE_EV)
+        .collect();
+    let dummies: Vec<usize> = f.sites.iter().map(|s| s.dummy.index()).collect();
+    let mut hh = Vec::new();
+    let mut ll = Vec::new();
+    for site in &f.sites {
+        let a = site.anchor.index();
+        let shifted = a - dummies.iter().filter(|&&d| d < a).count();
+        let amp = |orbs: &[usize]| -> f64 {
+            built
+                .site_atom
+                .iter()
+                .position(|&x| x == shifted)
+                .map_or(0.0, |s| {
+                    orbs.iter().map(|&k| r.coeffs[(s, k)].powi(2)).sum()
+                })
+        };
+        hh.push(amp(&homos));
+        ll.push(amp(&lumos));
+    }
+    (hh, ll)
+}
+
+/// A one-fragment library around `f` plus the probe, so the combiner's own assembly builds the
+/// capped fragment and the probe dimers.
+fn probe_library(f: &Fragment) -> Result<Library, String> {
+    let text = format!(
+        "[[fragment]]\nid = \"probe-phenyl\"\nname = \"phenyl\"\nrole = \"acceptor\"\n\
+         smiles = \"{PROBE_SMILES}\"\nhandle = \"none\"\n"
+    );
+    let mut probe = crate::fragments::load_library(std::path::Path::new("<probe>"), &text)
+        .map_err(|e| format!("probe fragment: {e:?}"))?;
+    let mut frags = vec![f.clone()];
+    frags.append(&mut probe);
+    Ok(Library { fragments: frags })
+}
+
+/// Compute the card of `f` with the parameter set `ppp`.
+pub fn fragment_card(f: &Fragment, ppp: &PppParams) -> Result<FragmentCard, String> {
+    let lib = probe_library(f)?;
+    let capped = assemble(
+        &lib,
+        &Tuple {
+            architecture: Architecture::DA,
+            core: 0,
+            arms: vec![Arm::H; f.site_count()],
+        },
+    );
+    let (homo, lumo, s1, t1) = local_states(&capped.mol, ppp);
+    let (anchor_homo2, anchor_lumo2) = anchor_amplitudes(f, &capped.mol, ppp);
+    let sites = (0..f.site_count())
+        .map(|s| {
+            let mut arms = vec![Arm::H; f.site_count()];
+            arms[s] = Arm::Terminal(1);
+            let c = assemble(
+                &lib,
+                &Tuple {
+                    architecture: Architecture::DA,
+                    core: 0,
+                    arms,
+                },
+            );
+            site_profile(&c, ppp)
+        })
+        .collect();
+    Ok(FragmentCard {
+        id: f.id.clone(),
+        role: f.role,
+        homo_ev: homo,
+        lumo_ev: lumo,
+        s1_ev: s1,
+        t1_ev: t1,
+        heavy_atoms: f.heavy_atoms,
+        sites,
+        anchor_homo2,
+        anchor_lumo2,
+    })
+}
+
+/// The raw scan of the one link of a probe dimer.
+fn site_profile(c: &crate::model::Candidate, ppp: &PppParams) -> Option<SiteProfile> {
+    let link = c.links.first()?;
+    let (a, b) = c.mol.graph.edge_endpoints(link.bond)?;
+    let (a, b) = (a.index(), b.index());
+    // Links sharing an atom with the probe link (the other rings of a triarylamine or
+    // triarylborane propeller) start where the π tier starts them, not planar.
+    let mut base = layout(&c.mol);
+    for (x, y) in crate::pi::estimate::links(&c.mol) {
+        if (x, y) != (a, b) && (x, y) != (b, a) && [x, y].iter().any(|z| *z == a || *z == b) {
+            rotate_about_bond(
+                &c.mol,
+                &mut base.points,
+                x,
+                y,
+                crate::pi::estimate::PROPELLER_START_DEG.to_radians(),
+            );
+        }
+    }
+    // A site whose probe link cannot twist (ring bond) or whose SCF fails has no profile.
+    let raw = raw_scan_with(&c.mol, (a, b), &GRID_DEG, ppp, true, &base).ok()?;
+    if raw.len() != GRID_DEG.len() || raw.iter().any(|r| !r.1.is_finite() || !r.2.is_finite()) {
+        return None;
+    }
+    let mut p = SiteProfile {
+        e_pi: [0.0; 13],
+        e_steric: [0.0; 13],
+    };
+    for (k, r) in raw.iter().enumerate() {
+        p.e_pi[k] = r.1;
+        p.e_steric[k] = r.2;
+    }
+    Some(p)
+}
+
+/// The probe joined to itself (biphenyl): the reference subtracted in the additive pair model.
+pub fn reference_profile(ppp: &PppParams) -> Option<SiteProfile> {
+    let lib = crate::fragments::load_library(
+        std::path::Path::new("<probe>"),
+        &format!(
+            "[[fragment]]\nid = \"probe-phenyl\"\nname = \"phenyl\"\nrole = \"acceptor\"\n\
+             smiles = \"{PROBE_SMILES}\"\nhandle = \"none\"\n"
+        ),
+    )
+    .expect("the probe fragment is valid");
+    let lib = Library { fragments: lib };
+    let c = assemble(
+        &lib,
+        &Tuple {
+            architecture: Architecture::DA,
+            core: 0,
+            arms: vec![Arm::Terminal(0)],
+        },
+    );
+    site_profile(&c, ppp)
+}
+
+/// Equilibrium twist (degrees) and Boltzmann ⟨cos²θ⟩ of a link between two sites.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PairTwist {
+    pub theta_deg: f32,
+    pub cos2: f32,
+}
+
+/// The additive pair model (module docs) for sites `x` and `y` (None = probe-like).
+pub fn pair_twist(
+    x: Option<&SiteProfile>,
+    y: Option<&SiteProfile>,
+    reference: &SiteProfile,
+    tp: &TorsionParams,
+) -> PairTwist {
+    let x = x.unwrap_or(reference);
+    let y = y.unwrap_or(reference);
+    let raw: Vec<(f64, f64, f64)> = (0..GRID_DEG.len())
+        .map(|k| {
+            (
+                GRID_DEG[k],
+                x.e_pi[k] + y.e_pi[k] - reference.e_pi[k],
+                x.e_steric[k] + y.e_steric[k] - reference.e_steric[k],
+            )
+        })
+        .collect();
+    let prof = profile(&raw, tp);
+    let cos2: f64 = prof
+        .points
+        .iter()
+        .map(|p| p.weight * p.theta_deg.to_radians().cos().powi(2))
+        .sum();
+    PairTwist {
+        theta_deg: prof.equilibrium_deg as f32,
+        cos2: cos2 as f32,
+    }
+}
+
+/// Every card of a library plus the dense site-pair twist table.
+#[derive(Debug, Clone)]
+pub struct CardSet {
+    pub cards: Vec<FragmentCard>,
+    /// First global site index of each fragment.
+    pub site_offset: Vec<usize>,
+    pub n_sites: usize,
+    /// `pairs[i * n_sites + j]` for global site indices i, j.
+    pub pairs: Vec<PairTwist>,
+}
+
+impl CardSet {
+    /// Assemble the set from cards computed in library order (the caller may compute them in
+    /// parallel) and tabulate every site pair.
+    pub fn new(cards: Vec<FragmentCard>, reference: &SiteProfile, tp: &TorsionParams) -> CardSet {
+        let mut site_offset = Vec::with_capacity(cards.len());
+        let mut all: Vec<Option<&SiteProfile>> = Vec::new();
+        for c in &cards {
+            site_offset.push(all.len());
+            all.extend(c.sites.iter().map(|s| s.as_ref()));
+        }
+        let n = all.len();
+        let mut pairs = Vec::with_capacity(n * n);
+        for i in 0..n {
+            for j in 0..n {
+                pairs.push(if j < i {
+                    pairs[j * n + i]
+                } else {
+                    pair_twist(all[i], all[j], reference, tp)
+                });
+            }
+        }
+        CardSet {
+            cards,
+            site_offset,
+            n_sites: n,
+            pairs,
+        }
+    }
+
+    /// The tabulated twist of the link between site `si` of fragment `fi` and site `sj` of
+    /// fragment `fj`.
+    #[inline]
+    pub fn pair(&self, fi: usize, si: usize, fj: usize, sj: usize) -> PairTwist {
+        let i = self.site_offset[fi] + si;
+        let j = self.site_offset[fj] + sj;
+        self.pairs[i * self.n_sites + j]
+    }
+}

@@ -1,0 +1,207 @@
+//! Per-tuple descriptors from fragment cards, in O(arms) with no allocation: the donor–acceptor
+//! paths of the tuple, their orbital gaps and couplings, and the lowest local excitations.
+
+use super::cards::CardSet;
+use crate::combine::{Arm, Tuple};
+use crate::model::{Architecture, Role};
+
+/// Number of descriptors (including the constant).
+pub const N_FEATURES: usize = 14;
+
+/// Names of the descriptors, in order (for fitted-model files and reports).
+pub const FEATURE_NAMES: [&str; N_FEATURES] = [
+    "const",
+    "gap_ev",
+    "mixing",
+    "mixing_sq",
+    "ln_mixing_sq",
+    "gap_x_mixing_sq",
+    "ln_paths",
+    "mixing_sq_sum",
+    "local_t1_min_ev",
+    "local_s1_min_ev",
+    "bridged",
+    "coupling_best",
+    "gap_over_local_s1_hinge_low",
+    "gap_over_local_s1_hinge_high",
+];
+
+/// Scale of the through-bond coupling (eV): the PPP resonance integral of an aromatic C–C
+/// bond, rounded (science.md a.4); only fixes the units of `mixing`, the fit absorbs it.
+pub const BETA_SCALE_EV: f64 = 2.4;
+/// Smallest energy denominator (eV) in the mixing amplitudes (near-degenerate levels mix
+/// strongly, not infinitely).
+pub const MIN_DENOMINATOR_EV: f64 = 0.3;
+/// Knots (eV) of the two hinge descriptors on gap − local S1: where the charge-transfer state
+/// sinks below the local excitations (the fit decides how much each matters).
+pub const HINGE_KNOTS_EV: [f64; 2] = [2.5, 3.5];
+
+/// What the model needs of one tuple besides the descriptor vector.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TupleSummary {
+    /// LUMO(acceptor) − HOMO(donor) of the best path (eV, fragment orbital energies).
+    pub gap_ev: f64,
+    /// ⟨cos²θ⟩ product along the best path (1 = planar and conjugated, 0 = perpendicular).
+    pub coupling: f64,
+    /// First-order amplitude of HOMO–LUMO overlap along the best path (dimensionless).
+    pub mixing: f64,
+    /// Equilibrium twist of the best path's donor-side link (degrees).
+    pub twist_deg: f64,
+    /// Donor–acceptor paths (arms joining a donor to an acceptor).
+    pub paths: usize,
+    pub local_s1_min_ev: f64,
+    pub local_t1_min_ev: f64,
+    /// Fragments (library indices) of the best path: donor, acceptor, bridge.
+    pub donor: usize,
+    pub acceptor: usize,
+    pub bridge: Option<usize>,
+}
+
+/// One side of a link: fragment index and site index.
+type End = (usize, usize);
+
+/// First-order mixing across one link between `x` and `y` (donor side first): hole
+/// delocalisation (HOMO with HOMO) plus electron delocalisation (LUMO with LUMO), each
+/// β·√(cos²θ·c²_x·c²_y)/|Δε|.
+#[inline]
+fn link_mixing(cards: &CardSet, x: End, y: End, cos2: f64) -> (f64, f64) {
+    let (cx, cy) = (&cards.cards[x.0], &cards.cards[y.0]);
+    let dh = (cx.homo_ev - cy.homo_ev).abs().max(MIN_DENOMINATOR_EV);
+    let dl = (cx.lumo_ev - cy.lumo_ev).abs().max(MIN_DENOMINATOR_EV);
+    let h = BETA_SCALE_EV * (cos2 * cx.anchor_homo2[x.1] * cy.anchor_homo2[y.1]).sqrt() / dh;
+    let l = BETA_SCALE_EV * (cos2 * cx.anchor_lumo2[x.1] * cy.anchor_lumo2[y.1]).sqrt() / dl;
+    (h, l)
+}
+
+/// One donor–acceptor path.
+#[derive(Clone, Copy)]
+struct Path {
+    gap: f64,
+    coupling: f64,
+    mixing: f64,
+    twist: f64,
+    donor: usize,
+    acceptor: usize,
+    bridge: Option<usize>,
+}
+
+/// Summarise `t` and write its descriptors into `x`. Returns None when the tuple has no
+/// donor–acceptor path (every arm hydrogen, or roles that never meet).
+pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option<TupleSummary> {
+    let core = &cards.cards[t.core];
+    let core_is_donor = t.architecture == Architecture::ADA || core.role == Role::Donor;
+    let (mut s1_min, mut t1_min) = (core.s1_ev, core.t1_ev);
+    let mut best: Option<Path> = None;
+    let mut n_paths = 0usize;
+    let mut mixing_sq_sum = 0.0;
+    let mut local = |f: usize| {
+        let c = &cards.cards[f];
+        if c.s1_ev < s1_min {
+            s1_min = c.s1_ev;
+        }
+        if c.t1_ev < t1_min {
+            t1_min = c.t1_ev;
+        }
+    };
+    for (site, arm) in t.arms.iter().enumerate() {
+        // (terminal fragment, ⟨cos²⟩ product, mixing, twist, bridge)
+        let (terminal, coupling, mixing, twist, bridge) = match *arm {
+            Arm::H => continue,
+            Arm::Terminal(f) => {
+                local(f);
+                let p = cards.pair(t.core, site, f, 0);
+                let c2 = p.cos2 as f64;
+                let (h, l) = link_mixing(cards, (f, 0), (t.core, site), c2);
+                (f, c2, h + l, p.theta_deg as f64, None)
+            }
+            Arm::Bridged {
+                bridge,
+                core_site,
+                terminal,
+            } => {
+                local(bridge);
+                local(terminal);
+                let cs = core_site as usize;
+                let a = cards.pair(t.core, site, bridge, cs);
+                let b = cards.pair(bridge, 1 - cs, terminal, 0);
+                let (ca, cb) = (a.cos2 as f64, b.cos2 as f64);
+                // Hole and electron meet on the bridge (hole leaks onto it across the
+                // terminal's link, electron across the core's) or pass it (products of the
+                // two links' amplitudes of one kind).
+                let (h1, l1) = link_mixing(cards, (terminal, 0), (bridge, 1 - cs), cb);
+                let (h2, l2) = link_mixing(cards, (bridge, cs), (t.core, site), ca);
+                let meet = if core_is_donor { l1 * h2 } else { h1 * l2 };
+                (
+                    terminal,
+                    ca * cb,
+                    meet + h1 * h2 + l1 * l2,
+                    b.theta_deg.max(a.theta_deg) as f64,
+                    Some(bridge),
+                )
+            }
+        };
+        let term = &cards.cards[terminal];
+        let roles_meet = if core_is_donor {
+            term.role == Role::Acceptor
+        } else {
+            term.role == Role::Donor
+        };
+        if !roles_meet {
+            continue;
+        }
+        let (homo, lumo) = if core_is_donor {
+            (core.homo_ev, term.lumo_ev)
+        } else {
+            (term.homo_ev, core.lumo_ev)
+        };
+        n_paths += 1;
+        mixing_sq_sum += mixing * mixing;
+        let p = Path {
+            gap: lumo - homo,
+            coupling,
+            mixing,
+            twist,
+            donor: if core_is_donor { t.core } else { terminal },
+            acceptor: if core_is_donor { terminal } else { t.core },
+            bridge,
+        };
+        best = match best {
+            None => Some(p),
+            Some(b) if p.gap < b.gap - 1e-9 || (p.gap <= b.gap + 1e-9 && p.mixing > b.mixing) => {
+                Some(p)
+            }
+            keep => keep,
+        };
+    }
+    let b = best?;
+    let m2 = b.mixing * b.mixing;
+    let over = b.gap - s1_min;
+    *x = [
+        1.0,
+        b.gap,
+        b.mixing,
+        m2,
+        (m2 + 1e-4).ln(),
+        b.gap * m2,
+        (n_paths as f64).ln(),
+        mixing_sq_sum,
+        t1_min,
+        s1_min,
+        if b.bridge.is_some() { 1.0 } else { 0.0 },
+        b.coupling,
+        (over - HINGE_KNOTS_EV[0]).max(0.0),
+        (over - HINGE_KNOTS_EV[1]).max(0.0),
+    ];
+    Some(TupleSummary {
+        gap_ev: b.gap,
+        coupling: b.coupling,
+        mixing: b.mixing,
+        twist_deg: b.twist,
+        paths: n_paths,
+        local_s1_min_ev: s1_min,
+        local_t1_min_ev: t1_min,
+        donor: b.donor,
+        acceptor: b.acceptor,
+        bridge: b.bridge,
+    })
+}

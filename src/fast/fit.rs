@@ -1,0 +1,271 @@
+//! Small statistics for fitting and judging the fast tier: ridge regression, Spearman rank
+//! correlation, and the top-k retention of a cascade.
+
+use nalgebra::{DMatrix, DVector};
+
+/// Ridge regression: minimise ‖Xw − y‖² + α‖w‖² with the first column (the constant) not
+/// penalised; columns are standardised before the penalty is applied so α means the same for
+/// every descriptor. Returns weights in the original units. `rows` are descriptor vectors.
+pub fn ridge(rows: &[Vec<f64>], y: &[f64], alpha: f64) -> Option<Vec<f64>> {
+    let n = rows.len();
+    let p = rows.first()?.len();
+    if n <= p || y.len() != n {
+        return None;
+    }
+    // Standardise columns 1.. (column 0 is the constant).
+    let mut mean = vec![0.0; p];
+    let mut sd = vec![1.0; p];
+    for j in 1..p {
+        mean[j] = rows.iter().map(|r| r[j]).sum::<f64>() / n as f64;
+        let v = rows.iter().map(|r| (r[j] - mean[j]).powi(2)).sum::<f64>() / n as f64;
+        sd[j] = if v > 1e-24 { v.sqrt() } else { 1.0 };
+    }
+    let x = DMatrix::from_fn(n, p, |i, j| {
+        if j == 0 {
+            1.0
+        } else {
+            (rows[i][j] - mean[j]) / sd[j]
+        }
+    });
+    let yv = DVector::from_column_slice(y);
+    let mut a = x.transpose() * &x;
+    for j in 1..p {
+        a[(j, j)] += alpha;
+    }
+    let b = x.transpose() * yv;
+    let w = a.cholesky()?.solve(&b);
+    // Back to original units.
+    let mut out = vec![0.0; p];
+    out[0] = w[0];
+    for j in 1..p {
+        out[j] = w[j] / sd[j];
+        out[0] -= w[j] * mean[j] / sd[j];
+    }
+    Some(out)
+}
+
+/// Ranks (0-based, ties averaged).
+pub fn ranks(v: &[f64]) -> Vec<f64> {
+    let mut idx: Vec<usize> = (0..v.len()).collect();
+    idx.sort_by(|&a, &b| v[a].total_cmp(&v[b]));
+    let mut r = vec![0.0; v.len()];
+    let mut i = 0;
+    while i < idx.len() {
+        let mut j = i;
+        while j + 1 < idx.len() && v[idx[j + 1]] == v[idx[i]] {
+            j += 1;
+        }
+        for k in i..=j {
+            r[idx[k]] = (i + j) as f64 / 2.0;
+        }
+        i = j + 1;
+    }
+    r
+}
+
+/// Spearman rank correlation (Pearson correlation of the ranks, ties averaged); NaN below
+/// three points.
+pub fn spearman(x: &[f64], y: &[f64]) -> f64 {
+    if x.len() < 3 || x.len() != y.len() {
+        return f64::NAN;
+    }
+    let (rx, ry) = (ranks(x), ranks(y));
+    let n = x.len() as f64;
+    let (mx, my) = (rx.iter().sum::<f64>() / n, ry.iter().sum::<f64>() / n);
+    let cov: f64 = rx.iter().zip(&ry).map(|(a, b)| (a - mx) * (b - my)).sum();
+    let vx: f64 = rx.iter().map(|a| (a - mx).powi(2)).sum();
+    let vy: f64 = ry.iter().map(|b| (b - my).powi(2)).sum();
+    cov / (vx * vy).sqrt()
+}
+
+/// Of the `top` best items by `truth` (smallest first), the fraction that are also among the
+/// `passed` best by `screen` (smallest first): what a cascade passing `passed` items keeps.
+/// Ties are broken by index, so the result is deterministic.
+pub fn top_k_retention(truth: &[f64], screen: &[f64], top: usize, passed: usize) -> f64 {
+    let order = |v: &[f64]| {
+        let mut idx: Vec<usize> = (0..v.len()).collect();
+        idx.sort_by(|&a, &b| v[a].total_cmp(&v[b]).then(a.cmp(&b)));
+        idx
+    };
+    let best = order(truth);
+    let kept = order(screen);
+    let mut pass = vec![false; truth.len()];
+    for &i in kept.iter().take(passed) {
+        pass[i] = true;
+    }
+    let top = top.min(truth.len());
+    if top == 0 {
+        return f64::NAN;
+    }
+    best.iter().take(top).filter(|&&i| pass[i]).count() as f64 / top as f64
+}
+
+/// One π-tier result with the tuple's descriptors, for fitting or testing the fast tier.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Sample {
+    pub x: [f64; super::N_FEATURES],
+    pub donor: usize,
+    pub acceptor: usize,
+    pub bridge: Option<usize>,
+    /// Torsion-averaged π-tier values.
+    pub s1_ev: f64,
+    pub delta_est_ev: f64,
+    pub f_s1: f64,
+}
+
+impl Sample {
+    fn targets(&self) -> [f64; 3] {
+        use super::model::{DEST_OFFSET_EV, F_FLOOR};
+        [
+            self.s1_ev,
+            (self.delta_est_ev.max(0.0) + DEST_OFFSET_EV).log10(),
+            (self.f_s1.max(0.0) + F_FLOOR).log10(),
+        ]
+    }
+}
+
+/// Fit the fast model (descriptor coefficients and per-slot fragment terms) by ridge
+/// regression with penalty `alpha` on standardised columns. `ids` are the library's fragment
+/// ids by index; only fragments seen in a slot get a term for it. The fit record is left for
+/// the caller to fill from held-out data.
+pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super::FastModel> {
+    use super::model::{Coefficients, FastModel, FitRecord};
+    let nf = ids.len();
+    let mut seen = vec![[false; 3]; nf];
+    for s in samples {
+        seen[s.donor][0] = true;
+        seen[s.acceptor][1] = true;
+        if let Some(b) = s.bridge {
+            seen[b][2] = true;
+        }
+    }
+    // Columns: descriptors, then one indicator per (slot, seen fragment).
+    let mut cols: Vec<(usize, usize)> = Vec::new();
+    for slot in 0..3 {
+        for (f, s) in seen.iter().enumerate() {
+            if s[slot] {
+                cols.push((slot, f));
+            }
+        }
+    }
+    let rows: Vec<Vec<f64>> = samples
+        .iter()
+        .map(|s| {
+            let mut r = s.x.to_vec();
+            r.extend(cols.iter().map(|&(slot, f)| {
+                let hit = match slot {
+                    0 => s.donor == f,
+                    1 => s.acceptor == f,
+                    _ => s.bridge == Some(f),
+                };
+                if hit { 1.0 } else { 0.0 }
+            }));
+            r
+        })
+        .collect();
+    let mut w = Vec::new();
+    for k in 0..3 {
+        let y: Vec<f64> = samples.iter().map(|s| s.targets()[k]).collect();
+        w.push(ridge(&rows, &y, alpha)?);
+    }
+    let p = super::N_FEATURES;
+    let mut terms: [std::collections::BTreeMap<String, super::model::Terms>; 3] =
+        Default::default();
+    for (c, &(slot, f)) in cols.iter().enumerate() {
+        terms[slot].insert(ids[f].clone(), [w[0][p + c], w[1][p + c], w[2][p + c]]);
+    }
+    let [donor_terms, acceptor_terms, bridge_terms] = terms;
+    Some(FastModel {
+        features: super::FEATURE_NAMES.iter().map(|s| s.to_string()).collect(),
+        coefficients: Coefficients {
+            s1_ev: w[0][..p].to_vec(),
+            log10_delta_est: w[1][..p].to_vec(),
+            log10_f: w[2][..p].to_vec(),
+        },
+        donor_terms,
+        acceptor_terms,
+        bridge_terms,
+        fit: FitRecord {
+            fixture: String::new(),
+            split: String::new(),
+            ridge_alpha: alpha,
+            n_fit: samples.len(),
+            n_test: 0,
+            spearman_s1: f64::NAN,
+            spearman_t1: f64::NAN,
+            spearman_delta_est: f64::NAN,
+            spearman_f: f64::NAN,
+            spearman_merit: f64::NAN,
+            mae_s1_ev: f64::NAN,
+            mae_t1_ev: f64::NAN,
+            mae_delta_est_ev: f64::NAN,
+            top100_kept_at_10pct: f64::NAN,
+            pass_fraction_for_95pct: f64::NAN,
+        },
+    })
+}
+
+/// How a bound model does on held-out samples (`x` descriptors already in each sample; the
+/// tuple-level prediction is recomputed from them and the fragment slots).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Evaluation {
+    pub n: usize,
+    pub spearman_s1: f64,
+    pub spearman_t1: f64,
+    pub spearman_delta_est: f64,
+    pub spearman_f: f64,
+    pub spearman_merit: f64,
+    pub mae_s1_ev: f64,
+    pub mae_t1_ev: f64,
+    pub mae_delta_est_ev: f64,
+    pub top100_kept_at_10pct: f64,
+    pub pass_fraction_for_95pct: f64,
+}
+
+/// Evaluate `model` (bound with refractive index `n` and temperature `t_k` for the merit) on
+/// `samples`, with `predict` mapping a sample to (S1, ΔEST, f).
+pub fn evaluate(
+    samples: &[Sample],
+    predict: impl Fn(&Sample) -> (f64, f64, f64),
+    n: f64,
+    t_k: f64,
+) -> Evaluation {
+    use crate::photophysics::log10_tadf_rate;
+    let p: Vec<(f64, f64, f64)> = samples.iter().map(&predict).collect();
+    let col = |g: &dyn Fn(usize) -> f64| (0..samples.len()).map(g).collect::<Vec<f64>>();
+    let ts1 = col(&|i| samples[i].s1_ev);
+    let td = col(&|i| samples[i].delta_est_ev);
+    let tt1 = col(&|i| samples[i].s1_ev - samples[i].delta_est_ev);
+    let tf = col(&|i| samples[i].f_s1);
+    let ps1 = col(&|i| p[i].0);
+    let pd = col(&|i| p[i].1);
+    let pt1 = col(&|i| p[i].0 - p[i].1);
+    let pf = col(&|i| p[i].2);
+    let tm = col(&|i| -log10_tadf_rate(ts1[i], td[i], tf[i], n, t_k));
+    let pm = col(&|i| -log10_tadf_rate(ps1[i], pd[i], pf[i], n, t_k));
+    let mae = |a: &[f64], b: &[f64]| {
+        a.iter().zip(b).map(|(x, y)| (x - y).abs()).sum::<f64>() / a.len().max(1) as f64
+    };
+    let len = samples.len();
+    let mut pass95 = 1.0;
+    for pct in 1..=100 {
+        let passed = (len * pct).div_ceil(100);
+        if top_k_retention(&tm, &pm, 100, passed) >= 0.95 {
+            pass95 = pct as f64 / 100.0;
+            break;
+        }
+    }
+    Evaluation {
+        n: len,
+        spearman_s1: spearman(&ts1, &ps1),
+        spearman_t1: spearman(&tt1, &pt1),
+        spearman_delta_est: spearman(&td, &pd),
+        spearman_f: spearman(&tf, &pf),
+        spearman_merit: spearman(&tm, &pm),
+        mae_s1_ev: mae(&ts1, &ps1),
+        mae_t1_ev: mae(&tt1, &pt1),
+        mae_delta_est_ev: mae(&td, &pd),
+        top100_kept_at_10pct: top_k_retention(&tm, &pm, 100, len / 10),
+        pass_fraction_for_95pct: pass95,
+    }
+}

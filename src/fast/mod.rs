@@ -1,0 +1,24 @@
+//! The fast fragment tier: O(1) estimates per tuple from cached fragment parameters, to
+//! pre-screen libraries far larger than the π tier can touch.
+//!
+//! - [`cards`]: each fragment's own π calculation (HOMO, LUMO, local S1 and T1 capped with
+//!   hydrogen) and the torsion profile of each attachment site against a phenyl probe; site
+//!   pairs tabulated into equilibrium twist and ⟨cos²θ⟩ by an additive model.
+//! - [`features`]: per tuple, the donor–acceptor paths (orbital gap, coupling along the path),
+//!   the lowest local excitations — table look-ups, no graph, no allocation.
+//! - [`model`]: per quantity (torsion-averaged S1, log ΔEST and log f of the π tier; T1 derived)
+//!   a linear model on those descriptors plus additive fragment terms, fitted to π-tier results
+//!   by `examples/fit_fast_tier.rs`; coefficients and the fit's held-out figures live in
+//!   `data/fast-tier.toml`. Tuples are ordered by log10 k_TADF from these values.
+//! - [`fit`]: ridge regression, Spearman ρ, top-k retention, the fit and its evaluation.
+//!
+//! It is a screen, not an estimate to report: its numbers only order tuples for the π tier.
+
+pub mod cards;
+pub mod features;
+pub mod fit;
+pub mod model;
+
+pub use cards::{CardSet, FragmentCard, fragment_card, reference_profile};
+pub use features::{FEATURE_NAMES, N_FEATURES, TupleSummary, describe};
+pub use model::{BoundModel, FastEstimate, FastModel};

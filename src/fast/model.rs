@@ -1,0 +1,214 @@
+//! The fast tier's model: per quantity, a linear model on the physical descriptors of
+//! [`super::features`] plus additive fragment terms (one per fragment and slot — donor,
+//! acceptor, bridge of the best donor–acceptor path — the Free–Wilson form of additive
+//! substituent contributions: Free & Wilson, J. Med. Chem. 7, 395 (1964)). Quantities: S1,
+//! log10(ΔEST + 0.005 eV) and log10(f + 10⁻⁴), all torsion-averaged π-tier values; T1 is
+//! S1 − ΔEST so the three never contradict. Fitted by `examples/fit_fast_tier.rs`, stored in
+//! `data/fast-tier.toml` with the fit's held-out figures. A fragment the fit never saw gets no
+//! term (and the estimate says so).
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+use super::cards::CardSet;
+use super::features::{FEATURE_NAMES, N_FEATURES, describe};
+use crate::combine::Tuple;
+
+/// The shipped model.
+pub const DEFAULT_MODEL: &str = include_str!("../../data/fast-tier.toml");
+
+/// Floor added to f before the logarithm (f below it counts as dark).
+pub const F_FLOOR: f64 = 1e-4;
+/// Offset added to ΔEST (eV) before the logarithm (resolves small gaps without diverging).
+pub const DEST_OFFSET_EV: f64 = 0.005;
+/// Quantities the model predicts, in coefficient order.
+pub const TARGETS: [&str; 3] = ["s1_ev", "log10_delta_est", "log10_f"];
+
+/// Per-fragment additive terms, one value per target.
+pub type Terms = [f64; 3];
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Coefficients {
+    pub s1_ev: Vec<f64>,
+    pub log10_delta_est: Vec<f64>,
+    pub log10_f: Vec<f64>,
+}
+
+/// How the model was fitted and how it did on tuples it was not fitted on.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FitRecord {
+    pub fixture: String,
+    pub split: String,
+    pub ridge_alpha: f64,
+    pub n_fit: usize,
+    pub n_test: usize,
+    pub spearman_s1: f64,
+    pub spearman_t1: f64,
+    pub spearman_delta_est: f64,
+    pub spearman_f: f64,
+    pub spearman_merit: f64,
+    pub mae_s1_ev: f64,
+    pub mae_t1_ev: f64,
+    pub mae_delta_est_ev: f64,
+    /// Fraction of the π tier's top 100 by the merit (log10 k_TADF) kept when the fast tier
+    /// passes 10 % of the test tuples.
+    pub top100_kept_at_10pct: f64,
+    /// Smallest passed fraction that keeps 95 % of that top 100.
+    pub pass_fraction_for_95pct: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FastModel {
+    pub features: Vec<String>,
+    pub coefficients: Coefficients,
+    /// Fragment id → terms, per slot of the best path.
+    pub donor_terms: BTreeMap<String, Terms>,
+    pub acceptor_terms: BTreeMap<String, Terms>,
+    pub bridge_terms: BTreeMap<String, Terms>,
+    pub fit: FitRecord,
+}
+
+/// The fast tier's numbers for one tuple (screening values, not estimates to report).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct FastEstimate {
+    pub s1_ev: f64,
+    pub t1_ev: f64,
+    pub delta_est_ev: f64,
+    pub f_s1: f64,
+    /// log10 k_TADF (s⁻¹) from these values (`photophysics::log10_tadf_rate`): the cascade's
+    /// ordering key, larger is better.
+    pub merit: f64,
+    /// Best donor–acceptor path: orbital gap, ⟨cos²θ⟩ coupling, mixing and donor-side twist.
+    pub gap_ev: f64,
+    pub coupling: f64,
+    pub mixing: f64,
+    pub twist_deg: f64,
+    /// A fragment of the best path had no fitted term (outside the fitted library).
+    pub unseen_fragment: bool,
+}
+
+/// A model bound to one library's cards: fragment terms by library index.
+#[derive(Debug, Clone)]
+pub struct BoundModel {
+    w: [[f64; N_FEATURES]; 3],
+    /// Per library index: Some(terms) when fitted.
+    donor: Vec<Option<Terms>>,
+    acceptor: Vec<Option<Terms>>,
+    bridge: Vec<Option<Terms>>,
+    /// Refractive index and temperature for the merit.
+    pub refractive_index: f64,
+    pub temperature_k: f64,
+}
+
+impl FastModel {
+    pub fn parse(text: &str) -> Result<FastModel, String> {
+        let m: FastModel = toml::from_str(text).map_err(|e| e.to_string())?;
+        let c = &m.coefficients;
+        for (name, v) in [
+            ("s1_ev", &c.s1_ev),
+            ("log10_delta_est", &c.log10_delta_est),
+            ("log10_f", &c.log10_f),
+        ] {
+            if v.len() != N_FEATURES {
+                return Err(format!(
+                    "coefficients.{name}: {} values for {N_FEATURES} descriptors",
+                    v.len()
+                ));
+            }
+        }
+        if m.features.iter().map(String::as_str).ne(FEATURE_NAMES) {
+            return Err(format!("features: expected {FEATURE_NAMES:?}"));
+        }
+        Ok(m)
+    }
+
+    pub fn default_model() -> FastModel {
+        FastModel::parse(DEFAULT_MODEL).expect("the shipped fast-tier model is valid")
+    }
+
+    /// Bind to the fragments of `cards` (by id).
+    pub fn bind(&self, cards: &CardSet, refractive_index: f64, temperature_k: f64) -> BoundModel {
+        let look = |m: &BTreeMap<String, Terms>| -> Vec<Option<Terms>> {
+            cards.cards.iter().map(|c| m.get(&c.id).copied()).collect()
+        };
+        let arr = |v: &[f64]| -> [f64; N_FEATURES] { v.try_into().expect("length checked") };
+        BoundModel {
+            w: [
+                arr(&self.coefficients.s1_ev),
+                arr(&self.coefficients.log10_delta_est),
+                arr(&self.coefficients.log10_f),
+            ],
+            donor: look(&self.donor_terms),
+            acceptor: look(&self.acceptor_terms),
+            bridge: look(&self.bridge_terms),
+            refractive_index,
+            temperature_k,
+        }
+    }
+}
+
+#[inline]
+fn dot(w: &[f64; N_FEATURES], x: &[f64; N_FEATURES]) -> f64 {
+    w.iter().zip(x.iter()).map(|(a, b)| a * b).sum()
+}
+
+impl BoundModel {
+    /// (S1, ΔEST, f, unseen fragment) from descriptors and the best path's fragments.
+    #[inline]
+    pub fn predict_descriptors(
+        &self,
+        x: &[f64; N_FEATURES],
+        donor: usize,
+        acceptor: usize,
+        bridge: Option<usize>,
+    ) -> (f64, f64, f64, bool) {
+        let mut y = [dot(&self.w[0], x), dot(&self.w[1], x), dot(&self.w[2], x)];
+        let mut unseen = false;
+        let mut add = |terms: Option<Terms>| match terms {
+            Some(v) => {
+                for k in 0..3 {
+                    y[k] += v[k];
+                }
+            }
+            None => unseen = true,
+        };
+        add(self.donor[donor]);
+        add(self.acceptor[acceptor]);
+        if let Some(b) = bridge {
+            add(self.bridge[b]);
+        }
+        let d = (10f64.powf(y[1]) - DEST_OFFSET_EV).max(0.0);
+        let f = (10f64.powf(y[2]) - F_FLOOR).max(0.0);
+        (y[0], d, f, unseen)
+    }
+
+    /// The fast estimate of `t`, or None when it has no donor–acceptor path. No allocation.
+    #[inline]
+    pub fn predict(&self, cards: &CardSet, t: &Tuple) -> Option<FastEstimate> {
+        let mut x = [0.0; N_FEATURES];
+        let s = describe(cards, t, &mut x)?;
+        let (s1, d, f, unseen) = self.predict_descriptors(&x, s.donor, s.acceptor, s.bridge);
+        Some(FastEstimate {
+            s1_ev: s1,
+            t1_ev: s1 - d,
+            delta_est_ev: d,
+            f_s1: f,
+            merit: crate::photophysics::log10_tadf_rate(
+                s1,
+                d,
+                f,
+                self.refractive_index,
+                self.temperature_k,
+            ),
+            gap_ev: s.gap_ev,
+            coupling: s.coupling,
+            mixing: s.mixing,
+            twist_deg: s.twist_deg,
+            unseen_fragment: unseen,
+        })
+    }
+}
