@@ -460,19 +460,16 @@ fn screen_select(
         };
         let o = ordinal;
         ordinal += 1;
-        match bound.predict(&set, &t) {
+        match bound.merit(&set, &t) {
             None => no_path += 1,
-            Some(fe) => {
+            Some((merit, unseen)) => {
                 scored += 1;
-                let r = Ranked {
-                    merit: fe.merit,
-                    ordinal: o,
-                };
+                let r = Ranked { merit, ordinal: o };
                 if heap.len() < keep {
-                    heap.push(Reverse((r, fe.unseen_fragment)));
+                    heap.push(Reverse((r, unseen)));
                 } else if heap.peek().is_some_and(|w| r > w.0.0) {
                     heap.pop();
-                    heap.push(Reverse((r, fe.unseen_fragment)));
+                    heap.push(Reverse((r, unseen)));
                 }
             }
         }

@@ -227,6 +227,8 @@ pub fn reference_profile(ppp: &PppParams) -> Option<SiteProfile> {
 pub struct PairTwist {
     pub theta_deg: f32,
     pub cos2: f32,
+    /// √⟨cos²θ⟩ (kept so the hot path takes no square root).
+    pub rms_cos: f32,
 }
 
 /// The additive pair model (module docs) for sites `x` and `y` (None = probe-like).
@@ -256,6 +258,7 @@ pub fn pair_twist(
     PairTwist {
         theta_deg: prof.equilibrium_deg as f32,
         cos2: cos2 as f32,
+        rms_cos: cos2.sqrt() as f32,
     }
 }
 
@@ -268,6 +271,9 @@ pub struct CardSet {
     pub n_sites: usize,
     /// `pairs[i * n_sites + j]` for global site indices i, j.
     pub pairs: Vec<PairTwist>,
+    /// Per global site: |HOMO| and |LUMO| coefficient at the anchor (flat, for the hot path).
+    pub site_homo: Vec<f64>,
+    pub site_lumo: Vec<f64>,
 }
 
 impl CardSet {
@@ -291,11 +297,21 @@ impl CardSet {
                 });
             }
         }
+        let site_homo = cards
+            .iter()
+            .flat_map(|c| c.anchor_homo2.iter().map(|x| x.sqrt()))
+            .collect();
+        let site_lumo = cards
+            .iter()
+            .flat_map(|c| c.anchor_lumo2.iter().map(|x| x.sqrt()))
+            .collect();
         CardSet {
             cards,
             site_offset,
             n_sites: n,
             pairs,
+            site_homo,
+            site_lumo,
         }
     }
 

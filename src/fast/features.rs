@@ -57,19 +57,31 @@ pub struct TupleSummary {
     pub bridge: Option<usize>,
 }
 
+/// ln n for the path counts a tuple can have (no logarithm per tuple).
+const LN_SMALL: [f64; 7] = [
+    f64::NEG_INFINITY,
+    0.0,
+    std::f64::consts::LN_2,
+    1.098_612_288_668_109_8,
+    1.386_294_361_119_890_6,
+    1.609_437_912_434_100_3,
+    1.791_759_469_228_055,
+];
+
 /// One side of a link: fragment index and site index.
 type End = (usize, usize);
 
 /// First-order mixing across one link between `x` and `y` (donor side first): hole
 /// delocalisation (HOMO with HOMO) plus electron delocalisation (LUMO with LUMO), each
-/// β·√(cos²θ·c²_x·c²_y)/|Δε|.
+/// β·√⟨cos²θ⟩·|c_x|·|c_y|/|Δε|.
 #[inline]
-fn link_mixing(cards: &CardSet, x: End, y: End, cos2: f64) -> (f64, f64) {
+fn link_mixing(cards: &CardSet, x: End, y: End, rms_cos: f64) -> (f64, f64) {
     let (cx, cy) = (&cards.cards[x.0], &cards.cards[y.0]);
+    let (sx, sy) = (cards.site_offset[x.0] + x.1, cards.site_offset[y.0] + y.1);
     let dh = (cx.homo_ev - cy.homo_ev).abs().max(MIN_DENOMINATOR_EV);
     let dl = (cx.lumo_ev - cy.lumo_ev).abs().max(MIN_DENOMINATOR_EV);
-    let h = BETA_SCALE_EV * (cos2 * cx.anchor_homo2[x.1] * cy.anchor_homo2[y.1]).sqrt() / dh;
-    let l = BETA_SCALE_EV * (cos2 * cx.anchor_lumo2[x.1] * cy.anchor_lumo2[y.1]).sqrt() / dl;
+    let h = BETA_SCALE_EV * rms_cos * cards.site_homo[sx] * cards.site_homo[sy] / dh;
+    let l = BETA_SCALE_EV * rms_cos * cards.site_lumo[sx] * cards.site_lumo[sy] / dl;
     (h, l)
 }
 
@@ -111,7 +123,7 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
                 local(f);
                 let p = cards.pair(t.core, site, f, 0);
                 let c2 = p.cos2 as f64;
-                let (h, l) = link_mixing(cards, (f, 0), (t.core, site), c2);
+                let (h, l) = link_mixing(cards, (f, 0), (t.core, site), p.rms_cos as f64);
                 (f, c2, h + l, p.theta_deg as f64, None)
             }
             Arm::Bridged {
@@ -128,8 +140,9 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
                 // Hole and electron meet on the bridge (hole leaks onto it across the
                 // terminal's link, electron across the core's) or pass it (products of the
                 // two links' amplitudes of one kind).
-                let (h1, l1) = link_mixing(cards, (terminal, 0), (bridge, 1 - cs), cb);
-                let (h2, l2) = link_mixing(cards, (bridge, cs), (t.core, site), ca);
+                let (h1, l1) =
+                    link_mixing(cards, (terminal, 0), (bridge, 1 - cs), b.rms_cos as f64);
+                let (h2, l2) = link_mixing(cards, (bridge, cs), (t.core, site), a.rms_cos as f64);
                 let meet = if core_is_donor { l1 * h2 } else { h1 * l2 };
                 (
                     terminal,
@@ -183,7 +196,10 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         m2,
         (m2 + 1e-4).ln(),
         b.gap * m2,
-        (n_paths as f64).ln(),
+        LN_SMALL
+            .get(n_paths)
+            .copied()
+            .unwrap_or((n_paths as f64).ln()),
         mixing_sq_sum,
         t1_min,
         s1_min,

@@ -102,6 +102,9 @@ pub struct BoundModel {
     /// Refractive index and temperature for the merit.
     pub refractive_index: f64,
     pub temperature_k: f64,
+    /// log10 k_TADF = merit_const + 2·log10 S1 + log10(f + 10⁻⁴) − ΔEST·merit_per_ev.
+    merit_const: f64,
+    merit_per_ev: f64,
 }
 
 impl FastModel {
@@ -147,6 +150,11 @@ impl FastModel {
             bridge: look(&self.bridge_terms),
             refractive_index,
             temperature_k,
+            // k_r at 1 eV with f = 1 (Einstein A, photophysics::radiative_rate), over 3.
+            merit_const: (crate::photophysics::radiative_rate(1.0, 1.0, refractive_index) / 3.0)
+                .log10(),
+            merit_per_ev: 1.0
+                / (crate::photophysics::K_B_EV * temperature_k * std::f64::consts::LN_10),
         }
     }
 }
@@ -157,15 +165,31 @@ fn dot(w: &[f64; N_FEATURES], x: &[f64; N_FEATURES]) -> f64 {
 }
 
 impl BoundModel {
-    /// (S1, ΔEST, f, unseen fragment) from descriptors and the best path's fragments.
+    /// The cascade's ordering key alone (log10 k_TADF, equal to [`Self::predict`]'s `merit`)
+    /// and whether a fragment was outside the fit: the screen's fast path.
     #[inline]
-    pub fn predict_descriptors(
+    pub fn merit(&self, cards: &CardSet, t: &Tuple) -> Option<(f64, bool)> {
+        let mut x = [0.0; N_FEATURES];
+        let s = describe(cards, t, &mut x)?;
+        let (y, unseen) = self.raw(&x, s.donor, s.acceptor, s.bridge);
+        let d = (10f64.powf(y[1]) - DEST_OFFSET_EV).max(0.0);
+        Some((
+            // log10(f + floor) with f clamped at zero, as in predict().
+            self.merit_const + 2.0 * y[0].log10() + y[2].max(F_FLOOR.log10())
+                - d * self.merit_per_ev,
+            unseen,
+        ))
+    }
+
+    /// The three linear predictions (S1, log10(ΔEST + offset), log10(f + floor)).
+    #[inline]
+    fn raw(
         &self,
         x: &[f64; N_FEATURES],
         donor: usize,
         acceptor: usize,
         bridge: Option<usize>,
-    ) -> (f64, f64, f64, bool) {
+    ) -> ([f64; 3], bool) {
         let mut y = [dot(&self.w[0], x), dot(&self.w[1], x), dot(&self.w[2], x)];
         let mut unseen = false;
         let mut add = |terms: Option<Terms>| match terms {
@@ -181,6 +205,19 @@ impl BoundModel {
         if let Some(b) = bridge {
             add(self.bridge[b]);
         }
+        (y, unseen)
+    }
+
+    /// (S1, ΔEST, f, unseen fragment) from descriptors and the best path's fragments.
+    #[inline]
+    pub fn predict_descriptors(
+        &self,
+        x: &[f64; N_FEATURES],
+        donor: usize,
+        acceptor: usize,
+        bridge: Option<usize>,
+    ) -> (f64, f64, f64, bool) {
+        let (y, unseen) = self.raw(x, donor, acceptor, bridge);
         let d = (10f64.powf(y[1]) - DEST_OFFSET_EV).max(0.0);
         let f = (10f64.powf(y[2]) - F_FLOOR).max(0.0);
         (y[0], d, f, unseen)

@@ -38,13 +38,13 @@ pub fn radiative_rate(f: f64, energy_ev: f64, n: f64) -> f64 {
 
 /// log10 of the delayed-fluorescence rate in the pre-equilibrium limit (s⁻¹):
 /// k_TADF = k_r · ⅓ · exp(−max(ΔE_ST, 0)/k_BT), with k_r = [`radiative_rate`]. With S1 and T1
-/// in fast equilibrium the singlet share of the pair is ⅓·exp(−ΔE_ST/k_BT) (three triplet
+/// in fast equilibrium the singlet share of the pair is ≈ ⅓·exp(−ΔE_ST/k_BT) (three triplet
 /// sublevels, the detailed balance of science.md c.2), and that share emits at k_r. A single
 /// figure that rewards a small gap only together with a bright S1 (a dark, perpendicular
 /// molecule with ΔE_ST = 0 scores low), used to order tuples in the screening cascade.
-/// `f` is floored at 10⁻⁴ (below that a state counts as dark).
+/// 10⁻⁴ is added to `f` (a dark state still gets a finite score, far below any bright one).
 pub fn log10_tadf_rate(s1_ev: f64, delta_est_ev: f64, f: f64, n: f64, t_k: f64) -> f64 {
-    radiative_rate(f.max(1e-4), s1_ev, n).log10()
+    radiative_rate(f.max(0.0) + 1e-4, s1_ev, n).log10()
         - 3f64.log10()
         - delta_est_ev.max(0.0) / (K_B_EV * t_k * std::f64::consts::LN_10)
 }

@@ -267,3 +267,41 @@ fn screen_settings_are_checked() {
     .to_string();
     assert!(e.contains("pass_fraction"), "{e}");
 }
+
+/// The screen's fast path gives the same merit as the full prediction, which equals
+/// `photophysics::log10_tadf_rate` of the predicted S1, ΔEST and f.
+#[test]
+fn the_fast_merit_equals_the_full_prediction() {
+    let lib = fasttier::library();
+    let set = fasttier::cards(&lib);
+    let bound = FastModel::default_model().bind(&set, 1.8, 320.0);
+    let params = EnumerateParams {
+        architectures: Architecture::ALL.to_vec(),
+        max_mol_weight: 800.0,
+        ..EnumerateParams::default()
+    };
+    let en = Enumerator::new(&lib, &params).unwrap();
+    let mut n = 0;
+    en.for_each(|e| {
+        if let TupleEvent::Admitted(t) = e {
+            n += 1;
+            if n % 11 == 0 {
+                let full = bound.predict(&set, &t).unwrap();
+                let (m, unseen) = bound.merit(&set, &t).unwrap();
+                let direct = lumisift::photophysics::log10_tadf_rate(
+                    full.s1_ev,
+                    full.delta_est_ev,
+                    full.f_s1,
+                    1.8,
+                    320.0,
+                );
+                assert!((m - full.merit).abs() < 1e-9, "{m} vs {}", full.merit);
+                assert!((m - direct).abs() < 1e-9, "{m} vs {direct}");
+                assert_eq!(unseen, full.unseen_fragment);
+                assert!((full.t1_ev - (full.s1_ev - full.delta_est_ev)).abs() < 1e-12);
+            }
+        }
+        ControlFlow::Continue(())
+    });
+    assert!(n > 1000);
+}
