@@ -25,31 +25,12 @@ fn main() {
     let ids: Vec<String> = lib.fragments.iter().map(|f| f.id.clone()).collect();
     let mut model = fit_model(&fit, &ids, ALPHA).expect("fit");
     let bound = model.bind(&set, fasttier::N_HOST, fasttier::T_K);
-    let ev = evaluate(
-        &test,
-        |s| {
-            let (a, b, c, _) = bound.predict_descriptors(&s.x, s.donor, s.acceptor, s.bridge);
-            (a, b, c)
-        },
-        fasttier::N_HOST,
-        fasttier::T_K,
-    );
+    let ev = evaluate(&test, &bound);
     println!("fit {} / test {}", fit.len(), test.len());
     println!("{ev:#?}");
-    let f = &mut model.fit;
-    f.fixture = "tests/fixtures/fast_tier/pi_tier.csv".into();
-    f.split = fasttier::SPLIT.into();
-    f.n_test = ev.n;
-    f.spearman_s1 = ev.spearman_s1;
-    f.spearman_t1 = ev.spearman_t1;
-    f.spearman_delta_est = ev.spearman_delta_est;
-    f.spearman_f = ev.spearman_f;
-    f.spearman_merit = ev.spearman_merit;
-    f.mae_s1_ev = ev.mae_s1_ev;
-    f.mae_t1_ev = ev.mae_t1_ev;
-    f.mae_delta_est_ev = ev.mae_delta_est_ev;
-    f.top100_kept_at_10pct = ev.top100_kept_at_10pct;
-    f.pass_fraction_for_95pct = ev.pass_fraction_for_95pct;
+    model.fit.fixture = "tests/fixtures/fast_tier/pi_tier.csv".into();
+    model.fit.split = fasttier::SPLIT.into();
+    model.fit.held_out = ev;
     if write {
         let text = format!(
             "# The fast fragment tier's model (src/fast/model.rs), written by\n\

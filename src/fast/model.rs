@@ -44,20 +44,7 @@ pub struct FitRecord {
     pub split: String,
     pub ridge_alpha: f64,
     pub n_fit: usize,
-    pub n_test: usize,
-    pub spearman_s1: f64,
-    pub spearman_t1: f64,
-    pub spearman_delta_est: f64,
-    pub spearman_f: f64,
-    pub spearman_merit: f64,
-    pub mae_s1_ev: f64,
-    pub mae_t1_ev: f64,
-    pub mae_delta_est_ev: f64,
-    /// Fraction of the π tier's top 100 by the merit (log10 k_TADF) kept when the fast tier
-    /// passes 10 % of the test tuples.
-    pub top100_kept_at_10pct: f64,
-    /// Smallest passed fraction that keeps 95 % of that top 100.
-    pub pass_fraction_for_95pct: f64,
+    pub held_out: super::fit::Evaluation,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

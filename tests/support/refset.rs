@@ -205,36 +205,9 @@ pub struct Row {
     pub t1_ct: (f64, f64),
 }
 
-fn ranks(v: &[f64]) -> Vec<f64> {
-    let mut idx: Vec<usize> = (0..v.len()).collect();
-    idx.sort_by(|&a, &b| v[a].total_cmp(&v[b]));
-    let mut r = vec![0.0; v.len()];
-    let mut i = 0;
-    while i < idx.len() {
-        let mut j = i;
-        while j + 1 < idx.len() && v[idx[j + 1]] == v[idx[i]] {
-            j += 1;
-        }
-        for k in i..=j {
-            r[idx[k]] = (i + j) as f64 / 2.0;
-        }
-        i = j + 1;
-    }
-    r
-}
-
-/// Spearman rank correlation (Pearson correlation of the ranks, ties averaged).
+/// Spearman rank correlation (the library's, ties averaged).
 pub fn spearman(x: &[f64], y: &[f64]) -> f64 {
-    if x.len() < 3 {
-        return f64::NAN;
-    }
-    let (rx, ry) = (ranks(x), ranks(y));
-    let n = x.len() as f64;
-    let (mx, my) = (rx.iter().sum::<f64>() / n, ry.iter().sum::<f64>() / n);
-    let cov: f64 = rx.iter().zip(&ry).map(|(a, b)| (a - mx) * (b - my)).sum();
-    let vx: f64 = rx.iter().map(|a| (a - mx).powi(2)).sum();
-    let vy: f64 = ry.iter().map(|b| (b - my).powi(2)).sum();
-    cov / (vx * vy).sqrt()
+    lumisift::fast::fit::spearman(x, y)
 }
 
 /// Compare the π tier (raw or corrected values) with the reference.
