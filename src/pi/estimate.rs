@@ -21,7 +21,7 @@ use crate::geometry::{Coordinates, layout, rotate_about_bond};
 use super::analysis::characterise;
 use super::build::build_model;
 use super::params::PppParams;
-use super::torsion::{TorsionParams, profile, raw_scan_with};
+use super::torsion::{profile, raw_scan_with};
 use super::typing::{PiSite, perceive};
 use super::{CisParams, Corrections, Multiplicity, PiError, ScfParams, cis, scf};
 
@@ -566,11 +566,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         .to_string();
     }
     // Torsion of each link.
-    let tp = TorsionParams {
-        conjugation_scale: ppp.torsion.conjugation_scale,
-        steric_scale: ppp.torsion.steric_scale,
-        temperature_k: p.temperature_k,
-    };
+    let tp = ppp.torsion_params(p.temperature_k);
     let steps = (180.0 / p.scan_step_deg).round() as usize;
     let grid: Vec<f64> = (0..=steps).map(|k| k as f64 * p.scan_step_deg).collect();
     let base = layout(mol);

@@ -147,6 +147,15 @@ pub struct PppParams {
 }
 
 impl PppParams {
+    /// The torsion model's settings: this set's fitted scales at `temperature_k`.
+    pub fn torsion_params(&self, temperature_k: f64) -> super::torsion::TorsionParams {
+        super::torsion::TorsionParams {
+            conjugation_scale: self.torsion.conjugation_scale,
+            steric_scale: self.torsion.steric_scale,
+            temperature_k,
+        }
+    }
+
     /// The shipped default set.
     pub fn default_set() -> PppParams {
         PppParams::parse(DEFAULT_PARAMS).expect("the shipped parameter file is valid")
