@@ -445,20 +445,36 @@ fn relieve_rotors(mol: &Molecule, points: &mut [Point]) {
     if rotors.is_empty() {
         return;
     }
+    // The hydrogen topology and each rotor's moving side do not change with the angles: built
+    // once; each trial recomputes only the coordinates.
+    let (mh, _) = with_hydrogens(
+        mol,
+        &Coordinates {
+            points: points.to_vec(),
+        },
+    );
+    let sides: Vec<Vec<bool>> = rotors
+        .iter()
+        .map(|&(a, b)| {
+            let mut side = vec![false; mh.atom_count()];
+            for x in branch(&mh, a, b) {
+                side[x] = true;
+            }
+            side
+        })
+        .collect();
     for _ in 0..2 {
-        for &(a, b) in &rotors {
-            let base: Vec<Point> = points.to_vec();
+        for (&(a, b), side) in rotors.iter().zip(&sides) {
+            let base = Coordinates {
+                points: points.to_vec(),
+            };
             let mut best = (f64::INFINITY, 0.0);
             for k in 0..24 {
                 let ang = (k as f64 * 15.0).to_radians();
                 let mut trial = base.clone();
-                rotate_about_bond(mol, &mut trial, a, b, ang);
-                let (mh, ch) = with_hydrogens(mol, &Coordinates { points: trial });
-                let mut side = vec![false; mh.atom_count()];
-                for x in branch(&mh, a, b) {
-                    side[x] = true;
-                }
-                let e = super::steric::side_repulsion(&mh, &ch, &side);
+                rotate_about_bond(mol, &mut trial.points, a, b, ang);
+                let ch = hydrogen_coordinates(mol, &trial);
+                let e = super::steric::side_repulsion(&mh, &ch, side);
                 if e < best.0 - 1e-9 {
                     best = (e, ang);
                 }
@@ -729,6 +745,30 @@ pub fn rotate_about_bond(
 pub fn with_hydrogens(mol: &Molecule, coords: &Coordinates) -> (Molecule, Coordinates) {
     let mut m = mol.clone();
     let mut pts = coords.points.clone();
+    place_hydrogens(mol, coords, |a, p| {
+        let hidx = m.add_atom(crate::chem::Atom::new(1));
+        m.add_bond(a, hidx, Bond::new(BondOrder::Single));
+        pts.push(p);
+    });
+    for a in mol.atoms() {
+        m.atom_mut(a).hydrogens = 0;
+    }
+    (m, Coordinates { points: pts })
+}
+
+/// The coordinates of [`with_hydrogens`] alone, for a molecule whose hydrogen topology is
+/// already built (the explicit hydrogens come in the same order: one call of `with_hydrogens`
+/// gives the molecule, this the coordinates of each further conformation).
+pub fn hydrogen_coordinates(mol: &Molecule, coords: &Coordinates) -> Coordinates {
+    let mut pts = coords.points.clone();
+    place_hydrogens(mol, coords, |_, p| pts.push(p));
+    Coordinates { points: pts }
+}
+
+/// The position of every implicit hydrogen of `mol`, passed with its parent atom to `put`,
+/// atom by atom in index order (the order of the explicit hydrogens of [`with_hydrogens`]).
+/// How many hydrogens an atom gets depends on the graph only, never on the coordinates.
+fn place_hydrogens(mol: &Molecule, coords: &Coordinates, mut put: impl FnMut(AtomIdx, Point)) {
     let tet = 109.47f64.to_radians();
     for a in mol.atoms() {
         let h = mol.atom(a).hydrogens as usize;
@@ -839,11 +879,7 @@ pub fn with_hydrogens(mol: &Molecule, coords: &Coordinates) -> (Molecule, Coordi
             _ => 1.1,
         };
         for d in dirs.into_iter().take(h) {
-            let hidx = m.add_atom(crate::chem::Atom::new(1));
-            m.add_bond(a, hidx, Bond::new(BondOrder::Single));
-            pts.push(add(pa, scale(unit(d), len)));
+            put(a, add(pa, scale(unit(d), len)));
         }
-        m.atom_mut(a).hydrogens = 0;
     }
-    (m, Coordinates { points: pts })
 }

@@ -15,7 +15,9 @@ mod readers;
 pub mod steric;
 mod writers;
 
-pub use layout::{Coordinates, branch, layout, rotate_about_bond, with_hydrogens};
+pub use layout::{
+    Coordinates, branch, hydrogen_coordinates, layout, rotate_about_bond, with_hydrogens,
+};
 pub use lengths::ideal_length;
 pub use readers::{XyzAtom, heavy_atom_coordinates, parse_xyz};
 pub use writers::{sdf_block, xyz_block};

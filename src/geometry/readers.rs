@@ -81,6 +81,9 @@ pub fn heavy_atom_coordinates(mol: &Molecule, atoms: &[XyzAtom]) -> Result<Coord
     let ours: Vec<usize> = (0..mol.atom_count())
         .filter(|&i| mol.atom(crate::chem::AtomIdx::new(i)).element != 1)
         .collect();
+    if ours.len() != mol.atom_count() {
+        return Err("explicit hydrogen atoms in the SMILES are not supported with --xyz".into());
+    }
     if heavy.len() != ours.len() {
         return Err(format!(
             "the file has {} heavy atoms, the SMILES {}",
@@ -101,9 +104,6 @@ pub fn heavy_atom_coordinates(mol: &Molecule, atoms: &[XyzAtom]) -> Result<Coord
             ));
         }
         points[i] = x.position;
-    }
-    if ours.len() != mol.atom_count() {
-        return Err("explicit hydrogen atoms in the SMILES are not supported with --xyz".into());
     }
     Ok(Coordinates { points })
 }

@@ -371,8 +371,9 @@ fn truncate((vals, vecs): (DVector<f64>, DMatrix<f64>), k: usize) -> (DVector<f6
 /// its diagonal. Diagonal preconditioner; start vectors on the k + 4 lowest diagonal elements,
 /// each with a small fixed pseudo-random admixture so that no symmetry sector is unreachable;
 /// the projected matrix grows by the new vectors only; restart to the current Ritz vectors
-/// when the basis exceeds 8 blocks. Converged when every residual norm is below 1e-5.
-/// `None` when 300 iterations do not converge or no new direction is left.
+/// when the basis exceeds 8 blocks. Converged when every residual norm is below
+/// `DAVIDSON_TOL` (1e-4 eV). `None` when 300 iterations do not converge or no new direction
+/// is left.
 pub fn davidson<F>(apply: F, diag: &[f64], k: usize) -> Option<(DVector<f64>, DMatrix<f64>)>
 where
     F: Fn(&DMatrix<f64>) -> DMatrix<f64>,

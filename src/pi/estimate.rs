@@ -19,11 +19,11 @@ use crate::chem::{AtomIdx, Molecule, rings};
 use crate::geometry::{Coordinates, layout, rotate_about_bond};
 
 use super::analysis::characterise;
-use super::build::build_model;
+use super::build::{BuiltModel, build_model};
 use super::params::PppParams;
-use super::torsion::{profile, raw_scan_with};
-use super::typing::{PiSite, perceive};
-use super::{CisParams, Corrections, Multiplicity, PiError, ScfParams, cis, scf};
+use super::torsion::{can_interpolate, profile, raw_scan_with};
+use super::typing::{PiSite, PiTyping, perceive};
+use super::{CisParams, Corrections, Multiplicity, PiError, ScfParams, ScfResult, cis, scf};
 
 /// Settings of an estimate.
 #[derive(Debug, Clone, PartialEq)]
@@ -98,8 +98,9 @@ pub struct StateInfo {
     pub electron_unit: usize,
 }
 
-/// Starting twist (degrees) of links that share an atom (triarylamine and triarylborane
-/// propellers twist their rings by roughly 30–50°: a start inside that basin).
+/// Starting twist (degrees) of links that share an atom: a start inside the propeller basin
+/// (triarylamine and triarylborane propellers twist their rings by roughly 30–50°; from memory
+/// of triphenylamine and triarylborane crystal structures, not from a checked source).
 pub const PROPELLER_START_DEG: f64 = 45.0;
 
 /// Maximum coordinate-descent sweeps over links that share an atom.
@@ -168,36 +169,52 @@ pub struct Estimate {
 /// planar layout with corrected CIS, or NaN where the SCF fails: the levels of a unit (or of a
 /// fragment capped with hydrogen) on its own.
 pub fn local_states(m: &Molecule, ppp: &PppParams) -> (f64, f64, f64, f64) {
-    let r = build_model(m, &layout(m), ppp).and_then(|b| {
-        let r = scf(&b.model, &ScfParams::default())?;
-        let x = cis(
-            &b.model,
-            &r,
-            &CisParams {
-                n_roots: 1,
-                corrections: ppp.corrections,
-                ..CisParams::default()
-            },
-        );
-        Ok((r, x))
-    });
-    match r {
-        Ok((r, x)) => {
-            let l = r.nocc.min(r.energies.len() - 1);
-            (
-                r.energies[r.nocc.saturating_sub(1)],
-                r.energies[l],
-                x.singlets.first().map_or(f64::NAN, |s| s.energy),
-                x.triplets.first().map_or(f64::NAN, |s| s.energy),
-            )
-        }
-        Err(_) => (f64::NAN, f64::NAN, f64::NAN, f64::NAN),
-    }
+    planar_scf(m, ppp).map_or((f64::NAN, f64::NAN, f64::NAN, f64::NAN), |(b, r)| {
+        local_levels(&b, &r, ppp)
+    })
+}
+
+/// [`local_states`] from a model and its SCF solution already at hand.
+pub fn local_levels(b: &BuiltModel, r: &ScfResult, ppp: &PppParams) -> (f64, f64, f64, f64) {
+    let x = cis(
+        &b.model,
+        r,
+        &CisParams {
+            n_roots: 1,
+            corrections: ppp.corrections,
+            ..CisParams::default()
+        },
+    );
+    let (homo, lumo) = frontier(r);
+    (
+        homo,
+        lumo,
+        x.singlets.first().map_or(f64::NAN, |s| s.energy),
+        x.triplets.first().map_or(f64::NAN, |s| s.energy),
+    )
+}
+
+/// HOMO and LUMO (eV) of a small molecule at its planar layout, or NaN where the SCF fails.
+fn frontier_only(m: &Molecule, ppp: &PppParams) -> (f64, f64) {
+    planar_scf(m, ppp).map_or((f64::NAN, f64::NAN), |(_, r)| frontier(&r))
+}
+
+/// The π model of a small molecule at its planar layout and its SCF solution.
+pub fn planar_scf(m: &Molecule, ppp: &PppParams) -> Result<(BuiltModel, ScfResult), PiError> {
+    let b = build_model(m, &layout(m), ppp)?;
+    let r = scf(&b.model, &ScfParams::default())?;
+    Ok((b, r))
+}
+
+/// HOMO and LUMO energies (eV) of an SCF solution (the LUMO index clamped to the last orbital).
+fn frontier(r: &ScfResult) -> (f64, f64) {
+    let l = r.nocc.min(r.energies.len() - 1);
+    (r.energies[r.nocc.saturating_sub(1)], r.energies[l])
 }
 
 /// Acyclic amine N and three-coordinate B atoms in the π system with at least one ring
 /// neighbour: the hubs of diarylamine / dialkylamine donors and triarylborane acceptors.
-fn is_hub(mol: &Molecule, typing: &super::typing::PiTyping, ring_atom: &[bool], a: usize) -> bool {
+fn is_hub(mol: &Molecule, typing: &PiTyping, ring_atom: &[bool], a: usize) -> bool {
     !ring_atom[a]
         && mol.degree(AtomIdx::new(a)) == 3
         && (matches!(typing.sites[a], PiSite::Site("N2") | PiSite::Site("B"))
@@ -206,12 +223,7 @@ fn is_hub(mol: &Molecule, typing: &super::typing::PiTyping, ring_atom: &[bool], 
 
 /// A diaryl ketone carbon (benzophenone-type): acyclic π carbon with a C=O and two ring
 /// neighbours. Its C–aryl bonds twist (crowded ortho hydrogens) but it is no unit boundary.
-fn is_carbonyl_hub(
-    mol: &Molecule,
-    typing: &super::typing::PiTyping,
-    ring_atom: &[bool],
-    a: usize,
-) -> bool {
+fn is_carbonyl_hub(mol: &Molecule, typing: &PiTyping, ring_atom: &[bool], a: usize) -> bool {
     let ai = AtomIdx::new(a);
     !ring_atom[a]
         && matches!(typing.sites[a], PiSite::Site("C"))
@@ -232,7 +244,16 @@ fn is_carbonyl_hub(
 pub fn links(mol: &Molecule) -> Vec<(usize, usize)> {
     let ring = rings::ring_bonds(mol);
     let ra = rings::ring_atoms(mol, &ring);
-    let typing = perceive(mol);
+    links_with(mol, &ring, &ra, &perceive(mol))
+}
+
+/// [`links`] from the ring bonds, ring atoms and π typing already perceived.
+fn links_with(
+    mol: &Molecule,
+    ring: &[bool],
+    ra: &[bool],
+    typing: &PiTyping,
+) -> Vec<(usize, usize)> {
     mol.graph
         .edge_indices()
         .filter(|e| !ring[e.index()] && !mol.bond(*e).aromatic)
@@ -245,8 +266,8 @@ pub fn links(mol: &Molecule) -> Vec<(usize, usize)> {
             let pi = |x: usize| matches!(typing.sites[x], PiSite::Site(_));
             let ok = pi(a)
                 && pi(b)
-                && ((ra[a] && (ra[b] || is_hub(mol, &typing, &ra, b)))
-                    || (ra[b] && is_hub(mol, &typing, &ra, a)));
+                && ((ra[a] && (ra[b] || is_hub(mol, typing, ra, b)))
+                    || (ra[b] && is_hub(mol, typing, ra, a)));
             ok.then_some((a, b))
         })
         .collect()
@@ -259,15 +280,26 @@ pub fn links(mol: &Molecule) -> Vec<(usize, usize)> {
 /// calculation (capped with hydrogen). A hub with one ring neighbour stays a unit of its own
 /// (a dialkylamino donor). Returns the unit of every atom.
 pub fn partition(mol: &Molecule, ppp: &PppParams) -> Vec<usize> {
-    let ls = links(mol);
-    let fine = units(mol, &ls);
-    let n_fine = fine.iter().max().map_or(0, |m| m + 1);
     let ring = rings::ring_bonds(mol);
     let ra = rings::ring_atoms(mol, &ring);
     let typing = perceive(mol);
-    let mut frontier: Vec<Option<(f64, f64)>> = vec![None; n_fine];
+    let ls = links_with(mol, &ring, &ra, &typing);
+    partition_with(mol, ppp, &ls, &typing, &ra)
+}
+
+/// [`partition`] with the links, π typing and ring atoms already perceived.
+fn partition_with(
+    mol: &Molecule,
+    ppp: &PppParams,
+    ls: &[(usize, usize)],
+    typing: &PiTyping,
+    ra: &[bool],
+) -> Vec<usize> {
+    let fine = units(mol, ls);
+    let n_fine = fine.iter().max().map_or(0, |m| m + 1);
+    let mut levels: Vec<Option<(f64, f64)>> = vec![None; n_fine];
     let mut frontier_of = |u: usize| -> (f64, f64) {
-        *frontier[u].get_or_insert_with(|| {
+        *levels[u].get_or_insert_with(|| {
             let atoms: Vec<usize> = (0..mol.atom_count()).filter(|&a| fine[a] == u).collect();
             frontier_only(&unit_molecule(mol, &atoms), ppp)
         })
@@ -283,7 +315,7 @@ pub fn partition(mol: &Molecule, ppp: &PppParams) -> Vec<usize> {
         r
     }
     for hub in 0..mol.atom_count() {
-        if !is_hub(mol, &typing, &ra, hub) {
+        if !is_hub(mol, typing, ra, hub) {
             continue;
         }
         let mut nb: Vec<usize> = ls
@@ -300,7 +332,7 @@ pub fn partition(mol: &Molecule, ppp: &PppParams) -> Vec<usize> {
             .collect();
         nb.sort_unstable();
         nb.dedup();
-        if is_carbonyl_hub(mol, &typing, &ra, hub) {
+        if is_carbonyl_hub(mol, typing, ra, hub) {
             // A ketone bridge belongs with both of its aryls.
             for &u in &nb {
                 let (x, y) = (root(&mut parent, fine[hub]), root(&mut parent, u));
@@ -348,17 +380,6 @@ pub fn partition(mol: &Molecule, ppp: &PppParams) -> Vec<usize> {
             label[r]
         })
         .collect()
-}
-
-/// HOMO and LUMO (eV) of a small molecule, or NaN.
-fn frontier_only(m: &Molecule, ppp: &PppParams) -> (f64, f64) {
-    build_model(m, &layout(m), ppp)
-        .and_then(|b| scf(&b.model, &ScfParams::default()))
-        .map(|r| {
-            let l = r.nocc.min(r.energies.len() - 1);
-            (r.energies[r.nocc.saturating_sub(1)], r.energies[l])
-        })
-        .unwrap_or((f64::NAN, f64::NAN))
 }
 
 /// Unit of every atom after cutting `links`.
@@ -421,8 +442,13 @@ struct Snapshot {
     overlap: f64,
     singlets: Vec<StateInfo>,
     triplets: Vec<StateInfo>,
+    /// Lowest singlet and triplet (eV) of plain CIS (no corrections) on the same SCF, when
+    /// asked for.
+    raw: Option<(f64, f64)>,
 }
 
+/// The states at `coords` (corrected CIS, `p.n_states` roots each) and, with `with_raw`, the
+/// lowest plain-CIS singlet and triplet from the same SCF solution.
 #[allow(clippy::too_many_arguments)]
 fn states_at(
     mol: &Molecule,
@@ -431,7 +457,7 @@ fn states_at(
     unit_of: &[usize],
     n_units: usize,
     p: &EstimateParams,
-    corrected: bool,
+    with_raw: bool,
     initial_density: Option<nalgebra::DMatrix<f64>>,
 ) -> Result<Snapshot, PiError> {
     let built = build_model(mol, coords, ppp)?;
@@ -443,21 +469,29 @@ fn states_at(
         },
     )?;
     let site_unit: Vec<usize> = built.site_atom.iter().map(|&a| unit_of[a]).collect();
-    let x = cis(
-        &built.model,
-        &r,
-        &CisParams {
-            n_roots: p.n_states,
-            n_occ: p.active_occ,
-            n_vir: p.active_vir,
-            corrections: if corrected {
-                ppp.corrections
-            } else {
-                Corrections::default()
+    let cis_params = CisParams {
+        n_roots: p.n_states,
+        n_occ: p.active_occ,
+        n_vir: p.active_vir,
+        corrections: ppp.corrections,
+        site_unit: Some(site_unit.clone()),
+    };
+    let x = cis(&built.model, &r, &cis_params);
+    let raw = with_raw.then(|| {
+        let y = cis(
+            &built.model,
+            &r,
+            &CisParams {
+                n_roots: 1,
+                corrections: Corrections::default(),
+                ..cis_params.clone()
             },
-            site_unit: Some(site_unit.clone()),
-        },
-    );
+        );
+        (
+            y.singlets.first().map_or(f64::NAN, |s| s.energy),
+            y.triplets.first().map_or(f64::NAN, |s| s.energy),
+        )
+    });
     let info = |s: &super::ExcitedState| {
         let c = characterise(&r, &x, s, &site_unit, n_units);
         let argmax = |v: &[f64]| {
@@ -500,6 +534,7 @@ fn states_at(
         overlap,
         singlets: x.singlets.iter().map(info).collect(),
         triplets: x.triplets.iter().map(info).collect(),
+        raw,
     })
 }
 
@@ -518,8 +553,12 @@ fn twisted(
 
 /// Estimate the excited states of `mol` (see the module documentation).
 pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<Estimate, PiError> {
-    let ls = links(mol);
-    let unit_of = partition(mol, ppp);
+    // Rings, π typing and links once; the partition and the flags reuse them.
+    let ring = rings::ring_bonds(mol);
+    let ra = rings::ring_atoms(mol, &ring);
+    let typing = perceive(mol);
+    let ls = links_with(mol, &ring, &ra, &typing);
+    let unit_of = partition_with(mol, ppp, &ls, &typing, &ra);
     let n_units = unit_of.iter().max().map_or(0, |m| m + 1);
     // Units and their roles.
     let mut units: Vec<UnitInfo> = (0..n_units)
@@ -544,7 +583,6 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
     };
     // A unit that is only an amine hub with alkyl groups (dialkylamino) has no π system of its
     // own to compute; its lone pair makes it the donor.
-    let typing = perceive(mol);
     let amine_only = |u: &UnitInfo| {
         !u.homo_ev.is_finite()
             && u.atoms
@@ -606,6 +644,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                 l.equilibrium_deg = PROPELLER_START_DEG;
             }
         }
+        let interpolate = can_interpolate(&grid);
         for sweep in 0..TORSION_SWEEPS {
             let mut moved = false;
             for k in 0..ls.len() {
@@ -616,15 +655,10 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                 let mut tw: Vec<f64> = link_info.iter().map(|l| l.equilibrium_deg).collect();
                 tw[k] = 0.0;
                 let start = twisted(mol, &base, &ls, &tw);
-                let on_grid = |t: f64| grid.iter().any(|&g| (g - t).abs() < 1e-9);
-                let interpolate = [0.0, 30.0, 60.0, 90.0, 120.0, 150.0, 180.0]
-                    .iter()
-                    .all(|&t| on_grid(t));
                 let raw = raw_scan_with(mol, ls[k], &grid, ppp, interpolate, &start)?;
                 let prof = profile(&raw, &tp);
-                if sweep == 0 || (prof.equilibrium_deg - link_info[k].equilibrium_deg).abs() > 2.0 {
-                    moved |= sweep > 0;
-                }
+                moved |=
+                    sweep > 0 && (prof.equilibrium_deg - link_info[k].equilibrium_deg).abs() > 2.0;
                 link_info[k] = LinkInfo {
                     atoms: ls[k],
                     equilibrium_deg: prof.equilibrium_deg,
@@ -649,19 +683,6 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         None => twisted(mol, &base, &ls, &eq),
     };
     let at_eq = states_at(mol, &eq_coords, ppp, &unit_of, n_units, p, true, None)?;
-    let raw = states_at(
-        mol,
-        &eq_coords,
-        ppp,
-        &unit_of,
-        n_units,
-        &EstimateParams {
-            n_states: 1,
-            ..p.clone()
-        },
-        false,
-        Some(at_eq.density.clone()),
-    )?;
     let s1 = at_eq.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
     let t1 = at_eq.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
     let f1 = at_eq.singlets.first().map_or(f64::NAN, |s| s.osc_strength);
@@ -692,30 +713,36 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
                 kept.push(q);
             }
             for (theta, w) in kept {
-                let mut tw = eq.clone();
-                tw[k] = theta;
-                let snap = match states_at(
-                    mol,
-                    &twisted(mol, &base, &ls, &tw),
-                    ppp,
-                    &unit_of,
-                    n_units,
-                    &p1,
-                    true,
-                    Some(at_eq.density.clone()),
-                ) {
-                    Ok(x) => x,
-                    Err(PiError::NotConverged { .. }) => {
-                        skipped.push((k, theta));
-                        continue;
-                    }
-                    Err(e) => return Err(e),
+                // At the link's own equilibrium angle (a minimum at a scan end, 0° or 180°, is
+                // not parabola-refined) the geometry is the equilibrium one: its states are known.
+                let (s, t, f) = if theta == eq[k] {
+                    (s1, t1, f1)
+                } else {
+                    let mut tw = eq.clone();
+                    tw[k] = theta;
+                    let snap = match states_at(
+                        mol,
+                        &twisted(mol, &base, &ls, &tw),
+                        ppp,
+                        &unit_of,
+                        n_units,
+                        &p1,
+                        false,
+                        Some(at_eq.density.clone()),
+                    ) {
+                        Ok(x) => x,
+                        Err(PiError::NotConverged { .. }) => {
+                            skipped.push((k, theta));
+                            continue;
+                        }
+                        Err(e) => return Err(e),
+                    };
+                    (
+                        snap.singlets[0].energy_ev,
+                        snap.triplets[0].energy_ev,
+                        snap.singlets[0].osc_strength,
+                    )
                 };
-                let (s, t, f) = (
-                    snap.singlets[0].energy_ev,
-                    snap.triplets[0].energy_ev,
-                    snap.singlets[0].osc_strength,
-                );
                 let wl = w / acc / ls.len() as f64;
                 wsum += wl;
                 ss += wl * s;
@@ -740,8 +767,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
             af = ff / wsum;
         }
     }
-    let raw_s1 = raw.singlets.first().map_or(f64::NAN, |s| s.energy_ev);
-    let raw_t1 = raw.triplets.first().map_or(f64::NAN, |s| s.energy_ev);
+    let (raw_s1, raw_t1) = at_eq.raw.unwrap_or((f64::NAN, f64::NAN));
     let le3 = at_eq.triplets.iter().find(|t| t.label == "LE");
     let unit_t1 = |u: Option<usize>| u.map(|u| units[u].local_t1_ev).filter(|x| x.is_finite());
     let mut flags = estimate_flags(mol, &typing, &units, &link_info);
@@ -813,7 +839,7 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
 /// Warnings on what the π model cannot see or where it is exact for the wrong reason.
 fn estimate_flags(
     mol: &Molecule,
-    typing: &super::typing::PiTyping,
+    typing: &PiTyping,
     units: &[UnitInfo],
     links: &[LinkInfo],
 ) -> Vec<String> {
@@ -870,7 +896,7 @@ fn measured_twist(mol: &Molecule, g: &Coordinates, a: usize, b: usize) -> f64 {
         super::build::p_axis(mol, &g.points, b, a, 0),
     ) {
         (Some(x), Some(y)) => {
-            let c = (x[0] * y[0] + x[1] * y[1] + x[2] * y[2]).abs().min(1.0);
+            let c = crate::geometry::dot(x, y).abs().min(1.0);
             c.acos().to_degrees()
         }
         _ => 0.0,

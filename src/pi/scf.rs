@@ -18,8 +18,9 @@ pub struct ScfParams {
     pub initial_density: Option<DMatrix<f64>>,
     /// Level shift (eV) added to the virtual space while iterating (Saunders & Hillier, Int.
     /// J. Quantum Chem. 7, 699 (1973)); it damps occupied–virtual oscillations and leaves the
-    /// converged solution unchanged. 0 = off. Without it, a failed run is retried once with
-    /// `RETRY_LEVEL_SHIFT_EV`.
+    /// converged solution unchanged. 0 = off. Without it (and without damping), a failed run is
+    /// retried with `RETRY_LEVEL_SHIFT_EV`, then from the core guess with a larger shift and
+    /// damping (see [`scf`]).
     pub level_shift: f64,
     /// Density damping while iterating: P ← (1 − d)·P_new + d·P_old (0 = off).
     pub damping: f64,
@@ -131,8 +132,9 @@ pub fn scf(model: &PppModel, params: &ScfParams) -> Result<ScfResult, PiError> {
     {
         return first;
     }
-    // Retries: a moderate level shift, then a large one with damping and no extrapolation
-    // (slow but steady for near-degenerate frontier orbitals).
+    // Retries: a moderate level shift (from the same start), then a large one with damping
+    // and no extrapolation from the core-Hamiltonian guess (slow but steady for
+    // near-degenerate frontier orbitals; it also recovers a warm start in the wrong basin).
     let retry = scf_once(
         model,
         &ScfParams {

@@ -10,7 +10,9 @@
 //! no sin θ Jacobian; science.md b), R = 8.314462618·10⁻³ kJ mol⁻¹ K⁻¹ (CODATA 2018).
 
 use crate::chem::Molecule;
-use crate::geometry::{Coordinates, branch, layout, rotate_about_bond, steric, with_hydrogens};
+use crate::geometry::{
+    Coordinates, branch, hydrogen_coordinates, layout, rotate_about_bond, steric, with_hydrogens,
+};
 
 use super::build::build_model;
 use super::params::PppParams;
@@ -50,21 +52,27 @@ pub struct TorsionProfile {
 /// Angles (degrees) at which the π energy is computed when the scan is interpolated.
 const PI_ANCHORS: [f64; 7] = [0.0, 30.0, 60.0, 90.0, 120.0, 150.0, 180.0];
 
+/// Can the π term of a scan over `grid` (degrees) be interpolated: are all the anchors 0°, 30°,
+/// …, 180° on the grid and every angle within 0–180°?
+pub fn can_interpolate(grid: &[f64]) -> bool {
+    let on_grid = |t: f64| grid.iter().any(|&g| (g - t).abs() < 1e-9);
+    PI_ANCHORS.iter().all(|&t| on_grid(t)) && grid.iter().all(|&t| (0.0..=180.0).contains(&t))
+}
+
 /// Raw (unscaled) π and steric energies along a scan about `link` = (a, b): the side of b
 /// rotates by θ from the planar layout. The steric term is computed at every angle; the π term
 /// (one SCF per angle, the cost) only at 0°, 30°, …, 180° when those are on the grid, and in
 /// between by interpolation in x = cos²θ through the four anchors of the same quadrant (cubic
 /// in x; under β ∝ cos θ the π energy is a smooth even function of cos θ, and the interpolation
-/// error is checked against direct SCF in the tests). Other grids are computed point by point.
+/// error is checked against direct SCF in the tests). Other grids are computed point by point
+/// ([`can_interpolate`] decides).
 pub fn raw_scan(
     mol: &Molecule,
     link: (usize, usize),
     angles_deg: &[f64],
     ppp: &PppParams,
 ) -> Result<Vec<(f64, f64, f64)>, PiError> {
-    let on_grid = |t: f64| angles_deg.iter().any(|&g| (g - t).abs() < 1e-9);
-    let interpolate = PI_ANCHORS.iter().all(|&t| on_grid(t))
-        && angles_deg.iter().all(|&t| (0.0..=180.0).contains(&t));
+    let interpolate = can_interpolate(angles_deg);
     raw_scan_with(mol, link, angles_deg, ppp, interpolate, &layout(mol))
 }
 
@@ -88,19 +96,15 @@ pub fn raw_scan_with(
     let mut density = None;
     let mut pi_energy = |t: f64| -> Result<f64, PiError> {
         let built = build_model(mol, &place(t)?, ppp)?;
-        let warm = density.take();
-        let had_warm = warm.is_some();
-        let mut r = scf(
+        // Warm start from the previous angle; a warm start in the wrong basin is covered by
+        // `scf`'s last retry, which starts from the core guess.
+        let r = scf(
             &built.model,
             &ScfParams {
-                initial_density: warm,
+                initial_density: density.take(),
                 ..ScfParams::default()
             },
         );
-        if had_warm && matches!(r, Err(PiError::NotConverged { .. })) {
-            // A warm start can sit in the wrong basin: once more from the core guess.
-            r = scf(&built.model, &ScfParams::default());
-        }
         match r {
             Ok(r) => {
                 density = Some(r.density);
@@ -120,6 +124,12 @@ pub fn raw_scan_with(
     } else {
         Vec::new()
     };
+    // The hydrogen topology and the moving side are the same at every angle.
+    let (mh, _) = with_hydrogens(mol, base);
+    let mut side = vec![false; mh.atom_count()];
+    for x in branch(&mh, link.0, link.1) {
+        side[x] = true;
+    }
     let mut out = Vec::with_capacity(angles_deg.len());
     for &t in angles_deg {
         let e_pi = if !interpolate {
@@ -143,12 +153,7 @@ pub fn raw_scan_with(
                 })
                 .sum()
         };
-        let c = place(t)?;
-        let (mh, ch) = with_hydrogens(mol, &c);
-        let mut side = vec![false; mh.atom_count()];
-        for x in branch(&mh, link.0, link.1) {
-            side[x] = true;
-        }
+        let ch = hydrogen_coordinates(mol, &place(t)?);
         let e_st = steric::side_repulsion(&mh, &ch, &side);
         out.push((t, e_pi, e_st));
     }
