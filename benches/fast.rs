@@ -8,25 +8,13 @@ use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 
 use lumisift::combine::{DnAMode, EnumerateParams, Enumerator, TupleEvent};
-use lumisift::fast::{CardSet, FastModel, fragment_card, reference_profile};
+use lumisift::fast::{CardSet, FastModel};
 use lumisift::model::Architecture;
 use lumisift::pi::params::PppParams;
-use lumisift::pi::torsion::TorsionParams;
 
 fn bench(c: &mut Criterion) {
     let lib = lumisift::fragments::load_paths(&["fragments".into()]).unwrap();
-    let ppp = PppParams::default_set();
-    let cards = lib
-        .fragments
-        .iter()
-        .map(|f| fragment_card(f, &ppp).unwrap())
-        .collect();
-    let tp = TorsionParams {
-        conjugation_scale: ppp.torsion.conjugation_scale,
-        steric_scale: ppp.torsion.steric_scale,
-        temperature_k: 300.0,
-    };
-    let set = CardSet::new(cards, &reference_profile(&ppp).unwrap(), &tp);
+    let set = CardSet::for_library(&lib, &PppParams::default_set(), 300.0).unwrap();
     let bound = FastModel::default_model().bind(&set, 1.7, 300.0);
     let params = EnumerateParams {
         architectures: Architecture::ALL.to_vec(),

@@ -5,12 +5,12 @@
 use std::hint::black_box;
 
 use criterion::{Criterion, criterion_group, criterion_main};
-use lumisift::chem::parse_smiles;
-use lumisift::geometry::{layout, rotate_about_bond};
-use lumisift::pi::build::build_model;
-use lumisift::pi::estimate::{EstimateParams, estimate, links};
+use lumisift::pi::estimate::{EstimateParams, estimate};
 use lumisift::pi::params::PppParams;
 use lumisift::pi::{CisParams, cis, scf};
+
+#[path = "support/pi_molecules.rs"]
+mod pi_molecules;
 
 #[global_allocator]
 static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
@@ -19,19 +19,8 @@ fn bench(c: &mut Criterion) {
     let ppp = PppParams::default_set();
     let mut g = c.benchmark_group("pi");
     g.sample_size(10);
-    for (name, smi) in [
-        ("21-site D-A", "N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21"),
-        (
-            "48-site D-B-A",
-            "c1ccc2c(c1)Oc1ccccc1N2c1ccc(cc1)-c1ccc(cc1)-c1nc(nc(n1)-c1ccccc1)-c1ccccc1",
-        ),
-    ] {
-        let m = parse_smiles(smi).unwrap();
-        let mut coords = layout(&m);
-        for (a, b) in links(&m) {
-            rotate_about_bond(&m, &mut coords.points, a, b, 60f64.to_radians());
-        }
-        let built = build_model(&m, &coords, &ppp).unwrap();
+    for (name, smi) in pi_molecules::MOLECULES {
+        let (m, built) = pi_molecules::twisted_model(smi, &ppp);
         g.bench_function(
             format!("scf+cis {name} ({} sites)", built.model.n_sites()),
             |b| {

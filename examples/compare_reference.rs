@@ -14,8 +14,9 @@ fn main() {
         None => PppParams::default_set(),
     };
     let entries = refset::load();
+    let ests = refset::estimates(&entries, &ppp);
     for (label, corrected) in [("raw PPP-CIS", false), ("corrected", true)] {
-        let m = refset::metrics(&entries, &ppp, corrected);
+        let m = refset::metrics(&entries, &ests, corrected);
         println!("\n== {label} ({}) ==", ppp.name);
         println!(
             "{:<32} {:>13} {:>13} {:>15} {:>11}",
@@ -43,7 +44,7 @@ fn main() {
             m.dest_mae,
             m.dest_spearman,
             m.f_spearman,
-            (m.character_agreement * m.n_character as f64).round(),
+            m.n_character_agree,
             m.n_character,
             100.0 * m.character_agreement
         );

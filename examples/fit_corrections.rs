@@ -29,7 +29,7 @@ fn main() {
                 triplet_exchange: lambda,
                 ct_stabilisation_ev: ct,
             };
-            let m = refset::metrics(&entries, &p, true);
+            let m = refset::metrics(&entries, &refset::estimates(&entries, &p), true);
             let obj = m.frag_t1_mae + m.t1_mae + m.s1_mae + (1.0 - m.character_agreement);
             if best.as_ref().is_none_or(|b| obj < b.0) {
                 best = Some((obj, lambda, ct, m));

@@ -19,16 +19,16 @@ fn main() {
     let write = std::env::args().any(|a| a == "--write");
     let lib = fasttier::library();
     let t0 = std::time::Instant::now();
-    let set = fasttier::cards(&lib);
+    let set = fasttier::cards();
     eprintln!("cards: {:.2} s", t0.elapsed().as_secs_f64());
-    let (fit, test) = fasttier::samples(&lib, &set);
+    let (fit, test) = fasttier::samples(lib, set);
     let ids: Vec<String> = lib.fragments.iter().map(|f| f.id.clone()).collect();
     let mut model = fit_model(&fit, &ids, ALPHA).expect("fit");
-    let bound = model.bind(&set, fasttier::N_HOST, fasttier::T_K);
+    let bound = model.bind(set, fasttier::N_HOST, fasttier::T_K);
     let ev = evaluate(&test, &bound);
     println!("fit {} / test {}", fit.len(), test.len());
     println!("{ev:#?}");
-    model.fit.fixture = "tests/fixtures/fast_tier/pi_tier.csv".into();
+    model.fit.fixture = fasttier::FIXTURE.into();
     model.fit.split = fasttier::SPLIT.into();
     model.fit.held_out = ev;
     if write {
@@ -38,7 +38,8 @@ fn main() {
              # seeded sample of the shipped library. [fit] holds its figures on held-out tuples.\n{}",
             toml::to_string(&model).expect("serialise")
         );
-        std::fs::write("data/fast-tier.toml", text).expect("write data/fast-tier.toml");
+        let out = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("data/fast-tier.toml");
+        std::fs::write(&out, text).expect("write data/fast-tier.toml");
         println!("wrote data/fast-tier.toml");
     }
 }

@@ -7,6 +7,9 @@ use std::process::ExitCode;
 use clap::{Parser, Subcommand};
 
 use lumisift::campaign::{self, Progress, RunOptions, Shard, Workflow};
+use lumisift::colour::{Spectrum, Units};
+use lumisift::forster::KAPPA2_ISOTROPIC;
+use lumisift::photophysics::{BandParams, RateParams};
 
 /// The library allocates many small, short-lived vectors per molecule; mimalloc serves them
 /// markedly faster than the system allocator on batch runs.
@@ -74,8 +77,8 @@ enum Command {
         /// Fix every link at this twist (degrees) instead of the torsion model.
         #[arg(long)]
         twist: Option<f64>,
-        /// Temperature for the Boltzmann distribution over twists (K).
-        #[arg(long, default_value_t = 300.0)]
+        /// Temperature for the Boltzmann distribution over twists and the rates (K).
+        #[arg(long, default_value_t = RateParams::default().temperature_k)]
         temperature: f64,
         /// A PPP parameter file of the shipped form (default: the shipped set).
         #[arg(long)]
@@ -94,19 +97,19 @@ enum Command {
         #[arg(long, value_name = "FILE")]
         write_sdf: Option<PathBuf>,
         /// Refractive index of the host (radiative rate).
-        #[arg(long, default_value_t = 1.7)]
+        #[arg(long, default_value_t = RateParams::default().refractive_index)]
         refractive_index: f64,
         /// Non-radiative rate of S1 (s⁻¹); 0 = the efficiency is an upper bound.
-        #[arg(long, default_value_t = 0.0)]
+        #[arg(long, default_value_t = RateParams::default().k_nr_singlet)]
         knr_singlet: f64,
         /// Non-radiative rate of T1 (s⁻¹).
-        #[arg(long, default_value_t = 0.0)]
+        #[arg(long, default_value_t = RateParams::default().k_nr_triplet)]
         knr_triplet: f64,
         /// Stokes shift (eV) from vertical S1 to the emission peak.
-        #[arg(long, default_value_t = 0.25)]
+        #[arg(long, default_value_t = BandParams::default().stokes_shift_ev)]
         stokes_shift: f64,
         /// Emission band FWHM (eV).
-        #[arg(long, default_value_t = 0.40)]
+        #[arg(long, default_value_t = BandParams::default().fwhm_ev)]
         fwhm: f64,
     },
     /// Colour of an emission spectrum or band: CIE 1931 x, y, CIE 1976 u′, v′, peak and
@@ -138,14 +141,15 @@ enum Command {
         donor: PathBuf,
         /// Acceptor (terminal emitter) absorption CSV: wavelength_nm,ε in M⁻¹ cm⁻¹.
         acceptor: PathBuf,
-        /// Donor photoluminescence quantum yield.
+        /// Donor photoluminescence quantum yield (default 1: a project choice, the upper bound
+        /// of R₀ when no measured yield is given).
         #[arg(long, default_value_t = 1.0)]
         phi_d: f64,
-        /// Refractive index of the medium.
-        #[arg(long, default_value_t = 1.7)]
+        /// Refractive index of the medium (default: the rate model's host value).
+        #[arg(long, default_value_t = RateParams::default().refractive_index)]
         n: f64,
-        /// Orientation factor κ² (2/3: isotropic, dynamically averaged).
-        #[arg(long, default_value_t = 2.0 / 3.0)]
+        /// Orientation factor κ² (default 2/3: isotropic, dynamically averaged).
+        #[arg(long, default_value_t = KAPPA2_ISOTROPIC)]
         kappa2: f64,
         /// Donor–acceptor distance (nm) for efficiency and rate.
         #[arg(long)]
@@ -165,9 +169,9 @@ enum Command {
         /// file stem names it.
         #[arg(required = true)]
         emitters: Vec<PathBuf>,
-        /// Orientation factor κ² (default 2/3).
-        #[arg(long)]
-        kappa2: Option<f64>,
+        /// Orientation factor κ² (default 2/3: isotropic, dynamically averaged).
+        #[arg(long, default_value_t = KAPPA2_ISOTROPIC)]
+        kappa2: f64,
         /// How many pairs to print.
         #[arg(long, default_value_t = 20)]
         top: usize,
@@ -282,14 +286,14 @@ fn main() -> ExitCode {
                 write_sdf,
             },
             (
-                lumisift::photophysics::RateParams {
+                RateParams {
                     refractive_index,
                     temperature_k: temperature,
                     k_nr_singlet: knr_singlet,
                     k_nr_triplet: knr_triplet,
                     ..Default::default()
                 },
-                lumisift::photophysics::BandParams {
+                BandParams {
                     stokes_shift_ev: stokes_shift,
                     fwhm_ev: fwhm,
                 },
@@ -341,15 +345,16 @@ fn run(
         Ok(s) => {
             if let Some(sc) = &s.screen {
                 eprintln!(
-                    "screen: {} tuples scored by the fast tier ({} without a donor–acceptor path); {} passed (log10 k_TADF ≥ {:.2}; {} with a fragment outside the fitted set); cards {:.2} s, scoring {:.2} s ({:.0} tuples/s incl. enumeration)",
+                    "screen: {} tuples scored by the fast tier ({} without a donor–acceptor path, {} outside the model's range); {} passed (log10 k_TADF ≥ {:.2}; {} with a fragment outside the fitted set); cards {:.2} s, scoring {:.2} s ({:.0} tuples/s incl. enumeration)",
                     sc.scored,
                     sc.no_path,
+                    sc.non_finite,
                     sc.passed,
                     sc.threshold_merit,
                     sc.passed_unseen_fragment,
                     sc.cards_s,
                     sc.scoring_s,
-                    (sc.scored + sc.no_path) as f64 / sc.scoring_s.max(1e-9)
+                    (sc.scored + sc.no_path + sc.non_finite) as f64 / sc.scoring_s.max(1e-9)
                 );
             }
             let c = &s.counts;
@@ -433,6 +438,7 @@ fn export(
     smi: Option<PathBuf>,
     estimates: Option<PathBuf>,
 ) -> ExitCode {
+    use lumisift::report::export as ex;
     let st = match campaign::store::Store::open_existing(store) {
         Ok(s) => s,
         Err(e) => return fail(e),
@@ -442,40 +448,46 @@ fn export(
     }
     let conn = st.connection();
     let result = match &csv {
-        Some(p) => std::fs::File::create(p)
-            .map_err(|e| format!("{}: {e}", p.display()))
-            .and_then(|f| {
-                lumisift::report::export::candidates_csv(conn, std::io::BufWriter::new(f))
-            }),
-        None => lumisift::report::export::candidates_csv(conn, std::io::stdout().lock()),
+        Some(p) => write_to_file(p, |w| ex::candidates_csv(conn, w)),
+        None => ex::candidates_csv(conn, std::io::stdout().lock()),
     };
     let n = match result {
         Ok(n) => n,
         Err(e) => return fail(e),
     };
     if let Some(p) = &estimates {
-        let r = std::fs::File::create(p)
-            .map_err(|e| format!("{}: {e}", p.display()))
-            .and_then(|f| {
-                lumisift::report::export::estimates_csv(conn, std::io::BufWriter::new(f))
-            });
-        match r {
+        match write_to_file(p, |w| ex::estimates_csv(conn, w)) {
             Ok(k) => eprintln!("exported {k} estimate rows to {}", p.display()),
             Err(e) => return fail(e),
         }
     }
-    if let Some(p) = &smi {
-        let r = std::fs::File::create(p)
-            .map_err(|e| format!("{}: {e}", p.display()))
-            .and_then(|f| {
-                lumisift::report::export::candidates_smi(conn, std::io::BufWriter::new(f))
-            });
-        if let Err(e) = r {
-            return fail(e);
-        }
+    if let Some(p) = &smi
+        && let Err(e) = write_to_file(p, |w| ex::candidates_smi(conn, w))
+    {
+        return fail(e);
     }
     eprintln!("exported {n} candidates");
     ExitCode::SUCCESS
+}
+
+/// Create `path` and hand a buffered writer to `write`; errors name the file when it cannot
+/// be created.
+fn write_to_file(
+    path: &Path,
+    write: impl FnOnce(std::io::BufWriter<std::fs::File>) -> Result<u64, String>,
+) -> Result<u64, String> {
+    let f = std::fs::File::create(path).map_err(|e| format!("{}: {e}", path.display()))?;
+    write(std::io::BufWriter::new(f))
+}
+
+/// A spectrum CSV file (wavelength_nm,intensity) read, parsed and checked; errors name the
+/// file.
+fn read_spectrum(path: &Path, units: Units) -> Result<Spectrum, String> {
+    std::fs::read_to_string(path)
+        .map_err(|e| e.to_string())
+        .and_then(|t| lumisift::colour::parse_spectrum_csv(&t))
+        .and_then(|pts| Spectrum::new(&pts, units))
+        .map_err(|e| format!("{}: {e}", path.display()))
 }
 
 /// Files `inspect` reads or writes besides its report.
@@ -492,14 +504,18 @@ fn inspect(
     params: Option<&Path>,
     json: bool,
     files: InspectFiles,
-    (rates, band): (
-        lumisift::photophysics::RateParams,
-        lumisift::photophysics::BandParams,
-    ),
+    (rates, band): (RateParams, BandParams),
 ) -> ExitCode {
     use lumisift::pi::estimate::{EstimateParams, estimate};
     use lumisift::pi::params::PppParams;
     use lumisift::report::inspect as page;
+    // Settings first: a bad value must not wait for the estimate.
+    if temperature.is_nan() || temperature <= 0.0 {
+        return fail("--temperature must be positive (K)");
+    }
+    if let Err(e) = rates.validate().and_then(|()| band.validate()) {
+        return fail(format!("rate/band setting: {e}"));
+    }
     let mol = match lumisift::chem::parse_smiles(smiles) {
         Ok(m) => m,
         Err(e) => return fail(format!("SMILES '{smiles}': {e}")),
@@ -514,9 +530,6 @@ fn inspect(
             Err(e) => return fail(format!("{}: {e}", p.display())),
         },
     };
-    if temperature.is_nan() || temperature <= 0.0 {
-        return fail("--temperature must be positive (K)");
-    }
     let geometry = match &files.xyz {
         None => None,
         Some(path) => {
@@ -545,37 +558,15 @@ fn inspect(
     };
     let canonical = lumisift::chem::canonical_smiles(&mol);
     let title = format!("{canonical} lumisift equilibrium geometry (estimate, not optimised)");
-    for (path, text) in [
-        (
-            &files.write_xyz,
-            files
-                .write_xyz
-                .as_ref()
-                .map(|_| page::geometry_xyz(&mol, &est, &title)),
-        ),
-        (
-            &files.write_sdf,
-            files
-                .write_sdf
-                .as_ref()
-                .map(|_| page::geometry_sdf(&mol, &est, &canonical)),
-        ),
-    ] {
-        if let (Some(path), Some(text)) = (path, text)
-            && let Err(e) = std::fs::write(path, text)
-        {
-            return fail(format!("{}: {e}", path.display()));
-        }
+    if let Some(path) = &files.write_xyz
+        && let Err(e) = std::fs::write(path, page::geometry_xyz(&mol, &est, &title))
+    {
+        return fail(format!("{}: {e}", path.display()));
     }
-    let valid = rates.refractive_index >= 1.0
-        && rates.k_nr_singlet >= 0.0
-        && rates.k_nr_triplet >= 0.0
-        && band.fwhm_ev > 0.0
-        && band.stokes_shift_ev >= 0.0;
-    if !valid {
-        return fail(
-            "--refractive-index ≥ 1, --knr-singlet/--knr-triplet ≥ 0, --fwhm > 0, --stokes-shift ≥ 0",
-        );
+    if let Some(path) = &files.write_sdf
+        && let Err(e) = std::fs::write(path, page::geometry_sdf(&mol, &est, &canonical))
+    {
+        return fail(format!("{}: {e}", path.display()));
     }
     let photo = lumisift::photophysics::assess(&est, &rates, &band);
     if json {
@@ -595,30 +586,19 @@ fn inspect(
     ExitCode::SUCCESS
 }
 
-fn pairs(
-    store: &Path,
-    emitters: &[PathBuf],
-    kappa2: Option<f64>,
-    top: usize,
-    json: bool,
-) -> ExitCode {
-    use lumisift::colour::{Spectrum, Units, parse_spectrum_csv};
-    if kappa2.is_some_and(|k| !(0.0..=4.0).contains(&k)) {
+fn pairs(store: &Path, emitters: &[PathBuf], kappa2: f64, top: usize, json: bool) -> ExitCode {
+    if !(0.0..=4.0).contains(&kappa2) {
         return fail("--kappa2 in [0, 4]");
     }
     let mut specs = Vec::new();
     for p in emitters {
-        match std::fs::read_to_string(p)
-            .map_err(|e| e.to_string())
-            .and_then(|t| parse_spectrum_csv(&t))
-            .and_then(|pts| Spectrum::new(&pts, Units::Energy))
-        {
+        match read_spectrum(p, Units::Energy) {
             Ok(s) => specs.push((
                 p.file_stem()
                     .map_or_else(|| p.display().to_string(), |s| s.to_string_lossy().into()),
                 s,
             )),
-            Err(e) => return fail(format!("{}: {e}", p.display())),
+            Err(e) => return fail(e),
         }
     }
     let st = match campaign::store::Store::open_existing(store) {
@@ -643,18 +623,19 @@ fn pairs(
         );
     } else {
         println!(
-            "{:>4} {:>7} {:>10} {:>6} {:<24} {:<34} unvalidated",
-            "rank", "R0/nm", "J", "Φ_D", "emitter", "sensitiser id"
+            "{:>4} {:>7} {:>10} {:>6} {:<24} {:<34} {:<16} unvalidated",
+            "rank", "R0/nm", "J", "Φ_D", "emitter", "sensitiser id", "parameters"
         );
         for (k, p) in shown.iter().enumerate() {
             println!(
-                "{:>4} {:>7.2} {:>10.3e} {:>6.3} {:<24} {:<34} {}",
+                "{:>4} {:>7.2} {:>10.3e} {:>6.3} {:<24} {:<34} {:<16} {}",
                 k + 1,
                 p.r0_nm,
                 p.overlap_m1_cm1_nm4,
                 p.phi_d,
                 p.emitter,
                 p.candidate_id,
+                p.param_hash,
                 p.unvalidated.join(",")
             );
         }
@@ -677,18 +658,11 @@ fn forster(
     tau_d: Option<f64>,
     json: bool,
 ) -> ExitCode {
-    use lumisift::colour::{Spectrum, Units, parse_spectrum_csv};
     use lumisift::forster as fr;
     if !((0.0..=1.0).contains(&phi_d) && n >= 1.0 && (0.0..=4.0).contains(&kappa2)) {
         return fail("--phi-d in [0, 1], --n ≥ 1, --kappa2 in [0, 4]");
     }
-    let read = |p: &Path| {
-        std::fs::read_to_string(p)
-            .map_err(|e| e.to_string())
-            .and_then(|t| parse_spectrum_csv(&t))
-            .and_then(|pts| Spectrum::new(&pts, Units::Energy))
-            .map_err(|e| format!("{}: {e}", p.display()))
-    };
+    let read = |p: &Path| read_spectrum(p, Units::Energy);
     let (d, a) = match (read(donor), read(acceptor)) {
         (Ok(d), Ok(a)) => (d, a),
         (Err(e), _) | (_, Err(e)) => return fail(e),
@@ -739,16 +713,12 @@ fn colour(
         }
         (Some(path), None) => {
             let units = match units {
-                SpectrumUnits::Photon => col::Units::Photon,
-                SpectrumUnits::Energy => col::Units::Energy,
+                SpectrumUnits::Photon => Units::Photon,
+                SpectrumUnits::Energy => Units::Energy,
             };
-            match std::fs::read_to_string(path)
-                .map_err(|e| e.to_string())
-                .and_then(|t| col::parse_spectrum_csv(&t))
-                .and_then(|pts| col::Spectrum::new(&pts, units))
-            {
+            match read_spectrum(path, units) {
                 Ok(s) => (path.display().to_string(), s),
-                Err(e) => return fail(format!("{}: {e}", path.display())),
+                Err(e) => return fail(e),
             }
         }
         (None, Some(b)) => {

@@ -97,6 +97,8 @@ pub struct ScreenSummary {
     pub scored: u64,
     /// Admitted tuples without a donor–acceptor path (never passed).
     pub no_path: u64,
+    /// Admitted tuples whose predicted merit is not a finite number (never passed).
+    pub non_finite: u64,
     pub passed: u64,
     /// Lowest log10 k_TADF (s⁻¹) among the passed tuples.
     pub threshold_merit: f64,
@@ -428,27 +430,16 @@ fn screen_select(
     use std::cmp::Reverse;
     use std::collections::BinaryHeap;
     let t0 = Instant::now();
+    // The shipped parameter set: the one the fast model was fitted with.
     let ppp = crate::pi::params::PppParams::default_set();
-    let cards: Vec<_> = lib
-        .fragments
-        .par_iter()
-        .map(|f| crate::fast::fragment_card(f, &ppp))
-        .collect::<Result<_, _>>()
-        .map_err(|e| CampaignError::Other(format!("screen: fragment cards: {e}")))?;
-    let tp = crate::pi::torsion::TorsionParams {
-        conjugation_scale: ppp.torsion.conjugation_scale,
-        steric_scale: ppp.torsion.steric_scale,
-        temperature_k: sc.temperature_k,
-    };
-    let reference = crate::fast::reference_profile(&ppp)
+    let set = crate::fast::CardSet::for_library(lib, &ppp, sc.temperature_k)
         .ok_or_else(|| CampaignError::Other("screen: the phenyl probe scan failed".into()))?;
-    let set = crate::fast::CardSet::new(cards, &reference, &tp);
     let bound = model.bind(&set, sc.refractive_index, sc.temperature_k);
     let cards_s = t0.elapsed().as_secs_f64();
     let t1 = Instant::now();
     let keep = ((admitted as f64 * sc.pass_fraction).ceil() as u64).max(1) as usize;
     let mut heap: BinaryHeap<Reverse<(Ranked, bool)>> = BinaryHeap::with_capacity(keep + 1);
-    let (mut scored, mut no_path, mut ordinal) = (0u64, 0u64, 0u64);
+    let (mut scored, mut no_path, mut non_finite, mut ordinal) = (0u64, 0u64, 0u64, 0u64);
     if opts.progress != Progress::Quiet {
         eprintln!(
             "screen: fast tier over {admitted} admitted tuples, keeping the best {keep} by log10 k_TADF"
@@ -462,6 +453,9 @@ fn screen_select(
         ordinal += 1;
         match bound.merit(&set, &t) {
             None => no_path += 1,
+            // A prediction outside the model's range (S1 ≤ 0 gives no logarithm) is never
+            // passed: NaN would otherwise order above every number.
+            Some((merit, _)) if !merit.is_finite() => non_finite += 1,
             Some((merit, unseen)) => {
                 scored += 1;
                 let r = Ranked { merit, ordinal: o };
@@ -489,6 +483,7 @@ fn screen_select(
         ScreenSummary {
             scored,
             no_path,
+            non_finite,
             passed,
             threshold_merit: threshold,
             passed_unseen_fragment: unseen,
@@ -688,8 +683,9 @@ fn run_estimate(
 /// Version of the stored estimate record; part of the stage's parameter hash, so a store
 /// holding older records recomputes instead of mixing layouts (2: raw values, ³LE gaps,
 /// states, per-angle samples, validation and flags; 3: photophysics with default rate and
-/// band settings).
-pub const ESTIMATE_RECORD_VERSION: u32 = 3;
+/// band settings; 4: effective rates dilute the S1/T1 pair by its Boltzmann share of the
+/// thermalised manifold).
+pub const ESTIMATE_RECORD_VERSION: u32 = 4;
 
 /// The stored record of one estimate (field names carry units).
 fn estimate_record(

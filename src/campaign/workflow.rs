@@ -38,7 +38,8 @@
 //! scan_step_deg = 15.0              # torsion scan step (divides 180)
 //! n_states = 6                      # states per multiplicity
 //! # params = "my-ppp.toml"          # PPP parameter file (default: the shipped set)
-//! [estimate.rates]                  # photophysics stored with each estimate (defaults shown)
+//! [estimate.rates]                  # photophysics stored with each estimate (defaults shown;
+//!                                   # the temperature is estimate.temperature_k)
 //! refractive_index = 1.7
 //! reorganisation_ev = 0.2
 //! soc_ct_ct_cm = 0.05               # ⟨¹CT|H_SO|³CT⟩
@@ -121,8 +122,9 @@ struct RawEstimate {
     band: crate::photophysics::BandParams,
 }
 
+/// The rate model's default temperature (300 K, room temperature; common practice).
 fn default_temperature() -> f64 {
-    300.0
+    crate::photophysics::RateParams::default().temperature_k
 }
 fn default_step() -> f64 {
     15.0
@@ -366,7 +368,7 @@ impl Workflow {
             None => {
                 if raw.campaign.stages.iter().any(|s| s == "estimate") {
                     Some(EstimateStage {
-                        temperature_k: 300.0,
+                        temperature_k: default_temperature(),
                         twist_deg: None,
                         scan_step_deg: 15.0,
                         n_states: 6,
@@ -392,16 +394,30 @@ impl Workflow {
                 if e.n_states == 0 {
                     return Err(err("estimate.n_states must be at least 1".into()));
                 }
+                if rates_table_sets_temperature(text) {
+                    return Err(err(
+                        "estimate.rates.temperature_k: not set here; the rates use \
+                         estimate.temperature_k (set that instead)"
+                            .into(),
+                    ));
+                }
+                let rates = crate::photophysics::RateParams {
+                    temperature_k: e.temperature_k,
+                    ..e.rates
+                };
+                rates
+                    .validate()
+                    .map_err(|m| err(format!("estimate.rates.{m}")))?;
+                e.band
+                    .validate()
+                    .map_err(|m| err(format!("estimate.band.{m}")))?;
                 Some(EstimateStage {
                     temperature_k: e.temperature_k,
                     twist_deg: e.twist_deg,
                     scan_step_deg: e.scan_step_deg,
                     n_states: e.n_states,
                     params: e.params.map(|p| resolve(&p)),
-                    rates: crate::photophysics::RateParams {
-                        temperature_k: e.temperature_k,
-                        ..e.rates
-                    },
+                    rates,
                     band: e.band,
                 })
             }
@@ -434,14 +450,16 @@ impl Workflow {
                     ));
                 }
             }
+            let rate_defaults = crate::photophysics::RateParams::default();
             Some(ScreenStage {
                 pass_fraction: r.pass_fraction,
                 model: r.model.map(|p| resolve(&p)),
-                temperature_k: estimate.as_ref().map_or(300.0, |e| e.temperature_k),
-                refractive_index: estimate.as_ref().map_or(
-                    crate::photophysics::RateParams::default().refractive_index,
-                    |e| e.rates.refractive_index,
-                ),
+                temperature_k: estimate
+                    .as_ref()
+                    .map_or(rate_defaults.temperature_k, |e| e.temperature_k),
+                refractive_index: estimate
+                    .as_ref()
+                    .map_or(rate_defaults.refractive_index, |e| e.rates.refractive_index),
             })
         } else {
             None
@@ -458,5 +476,69 @@ impl Workflow {
             estimate,
             screen,
         })
+    }
+}
+
+/// Whether the workflow text sets `temperature_k` in `[estimate.rates]` (a field of the rate
+/// model that the estimate's own temperature always overrides). `text` has parsed already.
+fn rates_table_sets_temperature(text: &str) -> bool {
+    toml::from_str::<toml::Table>(text).is_ok_and(|t| {
+        t.get("estimate")
+            .and_then(|e| e.get("rates"))
+            .and_then(|r| r.get("temperature_k"))
+            .is_some()
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse(extra: &str) -> Result<Workflow, String> {
+        let text = format!(
+            "[campaign]\nname = \"t\"\nstore = \"t.sqlite\"\nfragments = [\"f\"]\n\
+             stages = [\"screen\", \"enumerate\"]\n[enumerate]\narchitectures = [\"D-A\"]\n{extra}"
+        );
+        Workflow::parse(Path::new("/tmp/wf.toml"), &text).map_err(|e| e.to_string())
+    }
+
+    #[test]
+    fn rate_and_band_settings_are_checked_with_the_key_named() {
+        assert!(parse("[estimate]\n[estimate.rates]\noutcoupling = 0.3\n").is_ok());
+        for (table, key, value) in [
+            ("rates", "refractive_index", "0.5"),
+            ("rates", "reorganisation_ev", "0.0"),
+            ("rates", "outcoupling", "1.5"),
+            ("rates", "charge_balance", "0.0"),
+            ("rates", "k_nr_singlet", "-1.0"),
+            ("rates", "soc_ct_le_cm", "-0.1"),
+            ("rates", "manifold_kt", "-1.0"),
+            ("band", "fwhm_ev", "0.0"),
+            ("band", "stokes_shift_ev", "-0.1"),
+        ] {
+            let e = parse(&format!(
+                "[estimate]\n[estimate.{table}]\n{key} = {value}\n"
+            ))
+            .expect_err(key);
+            assert!(e.contains(&format!("estimate.{table}.{key}")), "{e}");
+        }
+    }
+
+    #[test]
+    fn rates_temperature_is_refused_in_favour_of_the_estimate_one() {
+        let e = parse("[estimate]\n[estimate.rates]\ntemperature_k = 300.0\n").unwrap_err();
+        assert!(e.contains("estimate.temperature_k"), "{e}");
+        let w = parse("[estimate]\ntemperature_k = 250.0\n").unwrap();
+        assert_eq!(w.estimate.unwrap().rates.temperature_k, 250.0);
+        assert_eq!(w.screen.unwrap().temperature_k, 250.0);
+    }
+
+    #[test]
+    fn screen_without_estimate_takes_the_rate_model_defaults() {
+        let w = parse("").unwrap();
+        let d = crate::photophysics::RateParams::default();
+        let s = w.screen.unwrap();
+        assert_eq!(s.temperature_k, d.temperature_k);
+        assert_eq!(s.refractive_index, d.refractive_index);
     }
 }

@@ -2,7 +2,8 @@
 //! dominant wavelength, excitation purity, and the distance to a colour target.
 //!
 //! Pure functions; the colour-matching functions are a data table shipped with the crate
-//! (`data/cie1931-2deg.csv`: the CIE 1931 2° standard observer, CIE 018:2019 / ISO/CIE 11664-1,
+//! (`data/cie1931-2deg.csv`: the CIE 1931 2° standard observer as standardised in ISO/CIE
+//! 11664-1:2019 and CIE 015:2018 *Colorimetry*; CIE dataset doi:10.25039/CIE.DS.xvudnb9b;
 //! 360–830 nm at 1 nm, as tabulated in colour-science 0.4.7; generating script
 //! `tests/fixtures/colour/make_colour_fixture.py`).
 //!
@@ -11,14 +12,16 @@
 //! Gaussian in photon energy (photon counts per eV) with a peak and a FWHM, turned into power per
 //! nm by P(λ) = N(E)·E·|dE/dλ|, E = hc/λ. Self-luminous: no illuminant enters X, Y, Z.
 //!
-//! Formulas: x = X/(X+Y+Z), y = Y/(X+Y+Z) (CIE 15:2018); u′ = 4x/(−2x + 12y + 3),
-//! v′ = 9y/(−2x + 12y + 3) (CIE 1976 UCS, CIE 15:2018); dominant wavelength: the spectral-locus
-//! point on the ray from the white point through the sample, complementary (reported negative)
-//! when the ray meets the purple line; excitation purity = |S − W| / |P − W| (CIE 15:2018).
+//! Formulas: x = X/(X+Y+Z), y = Y/(X+Y+Z) (CIE 015:2018); u′ = 4x/(−2x + 12y + 3),
+//! v′ = 9y/(−2x + 12y + 3) (CIE 1976 UCS, CIE 015:2018); dominant wavelength: the
+//! spectral-locus point on the ray from the white point through the sample, complementary
+//! (reported negative) when the ray meets the purple line; excitation purity = |S − W| / |P − W|
+//! (CIE 015:2018).
 
 use std::sync::OnceLock;
 
-/// h·c in eV·nm (CODATA 2018 exact SI constants).
+/// h·c in eV·nm (CODATA 2018 exact SI constants); the one definition of hc in the crate
+/// (`photophysics::HC_EV_CM` is derived from it).
 pub const HC_EV_NM: f64 = 1_239.841_984;
 
 /// CIE 1931 2° chromaticity of the D65 white point (ISO/CIE 11664-2; as used by ITU-R BT.709
@@ -302,7 +305,8 @@ fn dominant(x: f64, y: f64, w: (f64, f64)) -> (f64, f64) {
     };
     let purple = |dir: (f64, f64)| ray_segment(w, dir, locus[n - 1], locus[0]).map(|(t, _)| t);
     match (hit(d), purple(d)) {
-        (Some((t, nm)), p) if p.is_none_or(|tp| t <= tp) => (nm, dist_s / (t * dist_s)),
+        // The sample sits at t = 1 on the ray W + t·d and the locus at t: purity = 1/t.
+        (Some((t, nm)), p) if p.is_none_or(|tp| t <= tp) => (nm, 1.0 / t),
         (_, Some(tp)) => {
             // Purple sample: complementary wavelength on the opposite ray, purity against the
             // purple line.

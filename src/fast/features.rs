@@ -30,10 +30,11 @@ pub const FEATURE_NAMES: [&str; N_FEATURES] = [
 /// bond, rounded (science.md a.4); only fixes the units of `mixing`, the fit absorbs it.
 pub const BETA_SCALE_EV: f64 = 2.4;
 /// Smallest energy denominator (eV) in the mixing amplitudes (near-degenerate levels mix
-/// strongly, not infinitely).
+/// strongly, not infinitely; a choice of this tool, the fit absorbs the scale).
 pub const MIN_DENOMINATOR_EV: f64 = 0.3;
 /// Knots (eV) of the two hinge descriptors on gap − local S1: where the charge-transfer state
-/// sinks below the local excitations (the fit decides how much each matters).
+/// sinks below the local excitations (knots chosen by this tool inside the library's range of
+/// gap − local S1, 1.5–4.5 eV; the fit decides how much each matters).
 pub const HINGE_KNOTS_EV: [f64; 2] = [2.5, 3.5];
 
 /// What the model needs of one tuple besides the descriptor vector.
@@ -47,10 +48,6 @@ pub struct TupleSummary {
     pub mixing: f64,
     /// Equilibrium twist of the best path's donor-side link (degrees).
     pub twist_deg: f64,
-    /// Donor–acceptor paths (arms joining a donor to an acceptor).
-    pub paths: usize,
-    pub local_s1_min_ev: f64,
-    pub local_t1_min_ev: f64,
     /// Fragments (library indices) of the best path: donor, acceptor, bridge.
     pub donor: usize,
     pub acceptor: usize,
@@ -213,9 +210,6 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         coupling: b.coupling,
         mixing: b.mixing,
         twist_deg: b.twist,
-        paths: n_paths,
-        local_s1_min_ev: s1_min,
-        local_t1_min_ev: t1_min,
         donor: b.donor,
         acceptor: b.acceptor,
         bridge: b.bridge,

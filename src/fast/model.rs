@@ -18,9 +18,11 @@ use crate::combine::Tuple;
 /// The shipped model.
 pub const DEFAULT_MODEL: &str = include_str!("../../data/fast-tier.toml");
 
-/// Floor added to f before the logarithm (f below it counts as dark).
-pub const F_FLOOR: f64 = 1e-4;
-/// Offset added to ΔEST (eV) before the logarithm (resolves small gaps without diverging).
+/// Floor added to f before the logarithm: the same as the merit's, so a fitted log10(f + floor)
+/// is the merit's log10(f + floor) without a round trip.
+pub const F_FLOOR: f64 = crate::photophysics::F_DARK_FLOOR;
+/// Offset added to ΔEST (eV) before the logarithm (resolves small gaps without diverging; a
+/// choice of this tool, a fifth of k_BT at 300 K).
 pub const DEST_OFFSET_EV: f64 = 0.005;
 /// Quantities the model predicts, in coefficient order.
 pub const TARGETS: [&str; 3] = ["s1_ev", "log10_delta_est", "log10_f"];

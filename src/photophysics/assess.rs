@@ -4,8 +4,8 @@
 use serde::Serialize;
 
 use super::{
-    AveragedRate, Character, Kinetics, Level, RateParams, Rates, average_rate, kinetics,
-    manifold_rates, marcus_rate, radiative_rate,
+    AveragedRate, Character, Check, Kinetics, Level, RateParams, Rates, average_rate,
+    first_failure, kinetics, manifold_rates, manifold_weights,
 };
 use crate::colour::{Colour, D65, analyse, gaussian_band};
 use crate::pi::estimate::{Estimate, StateInfo};
@@ -31,6 +31,22 @@ impl Default for BandParams {
     }
 }
 
+impl BandParams {
+    /// Check the ranges (Stokes shift ≥ 0, FWHM > 0); the message names the offending key (as
+    /// in the workflow's `[estimate.band]` table) and the value found.
+    pub fn validate(&self) -> Result<(), String> {
+        let checks: [(&str, f64, Check); 2] = [
+            ("stokes_shift_ev", self.stokes_shift_ev, |x| {
+                (x >= 0.0 && x.is_finite(), "non-negative")
+            }),
+            ("fwhm_ev", self.fwhm_ev, |x| {
+                (x > 0.0 && x.is_finite(), "positive")
+            }),
+        ];
+        first_failure(&checks)
+    }
+}
+
 /// Rates, kinetics and colour of one candidate.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Assessment {
@@ -40,9 +56,13 @@ pub struct Assessment {
     pub k_r_averaged: AveragedRate,
     pub k_isc_averaged: AveragedRate,
     pub k_risc_averaged: AveragedRate,
-    /// The rates the kinetics use: the torsion average of the S1/T1 pair plus what the
-    /// thermalised manifold adds at equilibrium beyond that pair (bright higher singlets,
-    /// crossings through higher triplets).
+    /// The rates the kinetics use: the manifold rates at equilibrium with the lowest pair's
+    /// share replaced by its torsion average, i.e. w_S1·⟨k_r(S1)⟩ + (k_r,manifold − w_S1·k_r(S1)),
+    /// likewise w_S1 for k_ISC and w_T1 for k_RISC (w: the lowest level's Boltzmann share of
+    /// its manifold at equilibrium). So a dark S2 within the window dilutes the emitting
+    /// population (w_S1 < 1 lowers k_r) and a bright S2 adds its own share; the higher states'
+    /// terms stay at the equilibrium geometry. (A share rather than a ratio
+    /// manifold/pair: it stays defined when S1 is dark at equilibrium.)
     pub rates_effective: Rates,
     /// Kinetics with the effective rates.
     pub kinetics: Kinetics,
@@ -72,40 +92,51 @@ pub fn assess(est: &Estimate, p: &RateParams, band: &BandParams) -> Assessment {
         s.first().map_or(Character::Mixed, |l| l.character),
         t.first().map_or(Character::Mixed, |l| l.character),
     );
-    let h = p.soc(cs, ct);
-    // Per-angle rates of the S1/T1 pair; links weighted equally, as the energy averages.
-    let n_links = est.links.len().max(1) as f64;
-    let pair = |s1: f64, t1: f64, f: f64| -> (f64, f64, f64) {
-        (
-            radiative_rate(f, s1, p.refractive_index),
-            3.0 * marcus_rate(h, p.reorganisation_ev, t1 - s1, p.temperature_k),
-            marcus_rate(h, p.reorganisation_ev, s1 - t1, p.temperature_k),
+    // The S1/T1 pair alone at one geometry (characters from equilibrium).
+    let pair = |s1: f64, t1: f64, f: f64| {
+        manifold_rates(
+            &[Level {
+                energy_ev: s1,
+                f,
+                character: cs,
+            }],
+            &[Level {
+                energy_ev: t1,
+                f: 0.0,
+                character: ct,
+            }],
+            p,
         )
     };
-    let samples: Vec<(f64, (f64, f64, f64))> = if est.angle_samples.is_empty() {
+    // Per-angle pair rates; average_rate normalises the weights, so each link's samples
+    // (weights summing to 1 within the link) count equally, as in the energy averages.
+    let samples: Vec<(f64, Rates)> = if est.angle_samples.is_empty() {
         vec![(1.0, pair(est.s1_ev, est.t1_ev, est.f_s1))]
     } else {
         est.angle_samples
             .iter()
-            .map(|a| (a.weight / n_links, pair(a.s1_ev, a.t1_ev, a.f_s1)))
+            .map(|a| (a.weight, pair(a.s1_ev, a.t1_ev, a.f_s1)))
             .collect()
     };
-    let pick = |k: usize| -> Vec<(f64, f64)> {
-        samples
-            .iter()
-            .map(|(w, r)| (*w, [r.0, r.1, r.2][k]))
-            .collect()
+    let average = |k: fn(&Rates) -> f64| {
+        average_rate(&samples.iter().map(|(w, r)| (*w, k(r))).collect::<Vec<_>>())
     };
     let (kr, kisc, krisc) = (
-        average_rate(&pick(0)),
-        average_rate(&pick(1)),
-        average_rate(&pick(2)),
+        average(|r| r.k_r),
+        average(|r| r.k_isc),
+        average(|r| r.k_risc),
     );
-    let eq_pair = pair(est.s1_ev, est.t1_ev, est.f_s1);
+    // The lowest pair's term inside `rates` (same levels, same arithmetic) and its weight.
+    let eq_pair = manifold_rates(&s[..s.len().min(1)], &t[..t.len().min(1)], p);
+    let lowest_weight = |l: &[Level]| manifold_weights(l, p).first().copied().unwrap_or(1.0);
+    let (ws1, wt1) = (lowest_weight(&s), lowest_weight(&t));
+    // Replace the pair's equilibrium share by its torsion average; max(0) only absorbs
+    // rounding (the rest of a manifold sum is non-negative).
+    let swap = |total: f64, w: f64, eq: f64, avg: f64| w * avg + (total - w * eq).max(0.0);
     let effective = Rates {
-        k_r: kr.mean + (rates.k_r - eq_pair.0).max(0.0),
-        k_isc: kisc.mean + (rates.k_isc - eq_pair.1).max(0.0),
-        k_risc: krisc.mean + (rates.k_risc - eq_pair.2).max(0.0),
+        k_r: swap(rates.k_r, ws1, eq_pair.k_r, kr.mean),
+        k_isc: swap(rates.k_isc, ws1, eq_pair.k_isc, kisc.mean),
+        k_risc: swap(rates.k_risc, wt1, eq_pair.k_risc, krisc.mean),
     };
     let peak = est.s1_ev - band.stokes_shift_ev;
     let colour = gaussian_band(peak, band.fwhm_ev)

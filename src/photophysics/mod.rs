@@ -15,15 +15,22 @@ pub mod assess;
 pub use assess::{Assessment, BandParams, assess};
 
 /// Elementary charge (C), electron mass (kg), vacuum permittivity (F/m), speed of light (m/s),
-/// ħ (eV·s), Boltzmann constant (eV/K), h·c (eV·cm): CODATA 2018.
+/// ħ (eV·s), Boltzmann constant (eV/K): CODATA 2018.
 const E_CHARGE: f64 = 1.602_176_634e-19;
 const M_E: f64 = 9.109_383_701_5e-31;
 const EPS0: f64 = 8.854_187_812_8e-12;
 const C_LIGHT: f64 = 299_792_458.0;
 pub const HBAR_EV_S: f64 = 6.582_119_569e-16;
 pub const K_B_EV: f64 = 8.617_333_262e-5;
-/// h·c in eV·cm (1 cm⁻¹ = 1.239 841 98·10⁻⁴ eV).
-pub const HC_EV_CM: f64 = 1.239_841_984e-4;
+/// h·c in eV·cm (1 cm⁻¹ = 1.239 841 98·10⁻⁴ eV): [`crate::colour::HC_EV_NM`] with 1 nm = 10⁻⁷ cm
+/// (one constant, two units).
+pub const HC_EV_CM: f64 = crate::colour::HC_EV_NM * 1e-7;
+
+/// Oscillator-strength floor of [`log10_tadf_rate`]: added to `f` so that a dark state (f = 0)
+/// still gets a finite score, about two orders of magnitude below a weakly bright CT emitter
+/// (f ≈ 0.01). A project choice for ranking, not a physical oscillator strength; shared with
+/// the fast tier's merit so both tiers score dark states alike.
+pub const F_DARK_FLOOR: f64 = 1e-4;
 
 /// Einstein A coefficient (s⁻¹) of an emission with oscillator strength `f` at `energy_ev`, in
 /// a medium of refractive index `n` (equal degeneracies):
@@ -42,9 +49,10 @@ pub fn radiative_rate(f: f64, energy_ev: f64, n: f64) -> f64 {
 /// sublevels, the detailed balance of science.md c.2), and that share emits at k_r. A single
 /// figure that rewards a small gap only together with a bright S1 (a dark, perpendicular
 /// molecule with ΔE_ST = 0 scores low), used to order tuples in the screening cascade.
-/// 10⁻⁴ is added to `f` (a dark state still gets a finite score, far below any bright one).
+/// [`F_DARK_FLOOR`] is added to `f` (a dark state still gets a finite score, far below any
+/// bright one).
 pub fn log10_tadf_rate(s1_ev: f64, delta_est_ev: f64, f: f64, n: f64, t_k: f64) -> f64 {
-    radiative_rate(f.max(0.0) + 1e-4, s1_ev, n).log10()
+    radiative_rate(f.max(0.0) + F_DARK_FLOOR, s1_ev, n).log10()
         - 3f64.log10()
         - delta_est_ev.max(0.0) / (K_B_EV * t_k * std::f64::consts::LN_10)
 }
@@ -85,6 +93,8 @@ impl Character {
 pub struct RateParams {
     /// Refractive index of the host (organic host films ≈ 1.7–1.8, science.md e; from memory).
     pub refractive_index: f64,
+    /// Temperature (K) of the Boltzmann factors and Marcus rates. 300 K: room temperature,
+    /// common practice for device-relevant rates (science.md c.2 check values are at 300 K).
     pub temperature_k: f64,
     /// Reorganisation energy for S↔T conversion (typically 0.1–0.3 eV; Samanta et al., J. Am.
     /// Chem. Soc. 139, 4042 (2017), from memory).
@@ -98,7 +108,8 @@ pub struct RateParams {
     /// (an assumption of this tool, stated here; override when known).
     pub soc_le_le_cm: f64,
     /// States within this many k_BT of the lowest of their multiplicity join its thermalised
-    /// manifold.
+    /// manifold. 3 k_BT (Boltzmann factor e⁻³ ≈ 5 %): ASSUMED, a project choice; states
+    /// higher up carry too little population to matter at the model's accuracy.
     pub manifold_kt: f64,
     /// Non-radiative rates (s⁻¹): user parameters; 0 by default, so efficiencies are upper
     /// bounds labelled as such.
@@ -129,12 +140,37 @@ impl Default for RateParams {
 }
 
 impl RateParams {
+    /// Check every setting's range; the message names the offending key (as in the workflow's
+    /// `[estimate.rates]` table) and the value found. NaN fails every check.
+    pub fn validate(&self) -> Result<(), String> {
+        let at_least_one = |x: f64| (x >= 1.0 && x.is_finite(), "at least 1");
+        let positive = |x: f64| (x > 0.0 && x.is_finite(), "positive");
+        let non_negative = |x: f64| (x >= 0.0 && x.is_finite(), "non-negative");
+        let fraction = |x: f64| (x > 0.0 && x <= 1.0, "in (0, 1]");
+        let checks: [(&str, f64, Check); 11] = [
+            ("refractive_index", self.refractive_index, at_least_one),
+            ("temperature_k", self.temperature_k, positive),
+            ("reorganisation_ev", self.reorganisation_ev, positive),
+            ("soc_ct_ct_cm", self.soc_ct_ct_cm, non_negative),
+            ("soc_ct_le_cm", self.soc_ct_le_cm, non_negative),
+            ("soc_le_le_cm", self.soc_le_le_cm, non_negative),
+            ("manifold_kt", self.manifold_kt, non_negative),
+            ("k_nr_singlet", self.k_nr_singlet, non_negative),
+            ("k_nr_triplet", self.k_nr_triplet, non_negative),
+            ("charge_balance", self.charge_balance, fraction),
+            ("outcoupling", self.outcoupling, fraction),
+        ];
+        first_failure(&checks)
+    }
+
     /// Spin–orbit coupling (cm⁻¹) between a singlet and a triplet of the given characters
     /// (a mixed state counts as half CT, half LE: the couplings are interpolated).
     pub fn soc(&self, s: Character, t: Character) -> f64 {
         let w = |c: Character| match c {
             Character::Ct => 1.0,
             Character::Le => 0.0,
+            // ASSUMED (project choice): a state labelled mixed (CT number between the LE and
+            // CT thresholds) is weighted half CT, half LE; no source fixes this share.
             Character::Mixed => 0.5,
         };
         let (a, b) = (w(s), w(t));
@@ -142,6 +178,20 @@ impl RateParams {
             + (a * (1.0 - b) + (1.0 - a) * b) * self.soc_ct_le_cm
             + (1.0 - a) * (1.0 - b) * self.soc_le_le_cm
     }
+}
+
+/// A range check on one setting: (passes, what is required).
+pub(crate) type Check = fn(f64) -> (bool, &'static str);
+
+/// The first `(key, value, check)` whose check fails, as "key must be …, found value".
+pub(crate) fn first_failure(checks: &[(&str, f64, Check)]) -> Result<(), String> {
+    for (key, value, check) in checks {
+        let (ok, want) = check(*value);
+        if !ok {
+            return Err(format!("{key} must be {want}, found {value}"));
+        }
+    }
+    Ok(())
 }
 
 /// One excited state as the rate model needs it.
@@ -161,10 +211,13 @@ pub struct Rates {
     pub k_risc: f64,
 }
 
-fn boltzmann(levels: &[Level], p: &RateParams) -> Vec<f64> {
+/// Normalised Boltzmann weights of a thermalised manifold: `levels` sorted by energy, lowest
+/// first; a level more than `manifold_kt`·k_BT above the lowest gets weight 0. The lowest
+/// level's weight is its share of the population (1 when it is alone in the window).
+pub fn manifold_weights(levels: &[Level], p: &RateParams) -> Vec<f64> {
     let kt = K_B_EV * p.temperature_k;
     let e0 = levels.first().map_or(0.0, |l| l.energy_ev);
-    let w: Vec<f64> = levels
+    let mut w: Vec<f64> = levels
         .iter()
         .map(|l| {
             let d = l.energy_ev - e0;
@@ -176,7 +229,8 @@ fn boltzmann(levels: &[Level], p: &RateParams) -> Vec<f64> {
         })
         .collect();
     let z: f64 = w.iter().sum();
-    w.iter().map(|x| x / z).collect()
+    w.iter_mut().for_each(|x| *x /= z);
+    w
 }
 
 /// Rates of the thermalised manifolds: k_r = Σ_i w_i k_r,i over singlets within `manifold_kt`
@@ -185,10 +239,12 @@ fn boltzmann(levels: &[Level], p: &RateParams) -> Vec<f64> {
 /// window of T1 (a thermalised triplet population, so per sublevel), which includes reverse
 /// crossing through a higher local triplet. Detailed balance then gives
 /// k_RISC/k_ISC = ⅓·exp(−ΔE/k_BT) for one singlet and one triplet.
-/// `singlets` and `triplets` are sorted by energy, lowest first.
+/// `singlets` and `triplets` are sorted by energy, lowest first. The lowest pair's share of
+/// each rate is its own rate times the lowest level's [`manifold_weights`] entry: w_S1·k_r(S1),
+/// w_S1·3k(S1→T1), w_T1·k(T1→S1).
 pub fn manifold_rates(singlets: &[Level], triplets: &[Level], p: &RateParams) -> Rates {
-    let ws = boltzmann(singlets, p);
-    let wt = boltzmann(triplets, p);
+    let ws = manifold_weights(singlets, p);
+    let wt = manifold_weights(triplets, p);
     let t = p.temperature_k;
     let lam = p.reorganisation_ev;
     let mut k_r = 0.0;

@@ -148,24 +148,8 @@ pub fn estimates_csv<W: Write>(conn: &Connection, out: W) -> Result<u64, String>
     let mut w = csv::Writer::from_writer(out);
     w.write_record(ESTIMATE_COLUMNS)
         .map_err(|e| e.to_string())?;
-    let mut st = conn
-        .prepare(
-            "SELECT r.candidate_id, c.canonical_smiles, r.param_hash, r.data
-             FROM results r JOIN candidates c ON c.id = r.candidate_id
-             WHERE r.stage = 'estimate' ORDER BY r.candidate_id, r.param_hash",
-        )
-        .map_err(|e| e.to_string())?;
-    let mut rows = st.query([]).map_err(|e| e.to_string())?;
     let mut n = 0;
-    while let Some(r) = rows.next().map_err(|e| e.to_string())? {
-        let (id, smi, hash, data): (String, String, String, String) = (
-            r.get(0).map_err(|e| e.to_string())?,
-            r.get(1).map_err(|e| e.to_string())?,
-            r.get(2).map_err(|e| e.to_string())?,
-            r.get(3).map_err(|e| e.to_string())?,
-        );
-        let v: serde_json::Value =
-            serde_json::from_str(&data).map_err(|e| format!("{id}: stored record: {e}"))?;
+    super::for_each_estimate(conn, |id, smi, hash, v| {
         let num = |p: &str| -> String {
             v.pointer(p)
                 .and_then(|x| x.as_f64())
@@ -194,9 +178,9 @@ pub fn estimates_csv<W: Write>(conn: &Connection, out: W) -> Result<u64, String>
             None => list("/flags"),
         };
         w.write_record([
-            id,
-            smi,
-            hash,
+            id.to_string(),
+            smi.to_string(),
+            hash.to_string(),
             v.get("version").map(|x| x.to_string()).unwrap_or_default(),
             num("/s1_ev"),
             num("/t1_ev"),
@@ -223,7 +207,8 @@ pub fn estimates_csv<W: Write>(conn: &Connection, out: W) -> Result<u64, String>
         ])
         .map_err(|e| e.to_string())?;
         n += 1;
-    }
+        Ok(())
+    })?;
     w.flush().map_err(|e| e.to_string())?;
     Ok(n)
 }

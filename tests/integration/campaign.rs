@@ -71,13 +71,9 @@ include = ["1-4-phenylene", "2-methyl-1-4-phenylene", "pyridine-2-5-diyl", "2-5-
 }
 
 fn run(wf: &Path, args: &[&str]) -> std::process::Output {
-    let out = bin().arg("run").arg(wf).args(args).output().unwrap();
-    assert!(
-        out.status.success(),
-        "run failed: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    out
+    let mut all: Vec<&std::ffi::OsStr> = vec!["run".as_ref(), wf.as_os_str()];
+    all.extend(args.iter().map(|a| std::ffi::OsStr::new(*a)));
+    succeed(all)
 }
 
 /// All rows of the tables that define a campaign's content, sorted.

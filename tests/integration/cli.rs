@@ -178,6 +178,26 @@ fn inspect_reports_units_torsion_and_states() {
 }
 
 #[test]
+fn inspect_checks_rate_and_band_settings_before_the_estimate() {
+    // Te is outside the parameter set, so the estimate would fail: the settings error comes
+    // first, naming the key.
+    for (flag, value, key) in [
+        ("--fwhm", "0", "fwhm_ev"),
+        ("--stokes-shift", "-0.1", "stokes_shift_ev"),
+        ("--refractive-index", "0.5", "refractive_index"),
+        ("--knr-triplet", "-1", "k_nr_triplet"),
+    ] {
+        let out = bin()
+            .args(["inspect", "c1ccccc1-c1cc[te]c1", &format!("{flag}={value}")])
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(2));
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(err.contains(key) && !err.contains("Te"), "{err}");
+    }
+}
+
+#[test]
 fn inspect_writes_its_geometry_and_reads_it_back_with_xyz() {
     // Round trip: the equilibrium geometry written with --write-xyz and read with --xyz gives
     // the same states (twist measured from the coordinates instead of the torsion model).

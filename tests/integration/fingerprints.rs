@@ -12,7 +12,7 @@ fn fp(s: &str) -> lumisift::chem::Fingerprint {
     circular_fingerprint(&parse_smiles(s).unwrap(), FingerprintParams::default())
 }
 
-use crate::refset::spearman;
+use lumisift::fast::fit::spearman;
 
 #[test]
 fn tanimoto_ranks_pairs_like_rdkit_morgan() {

@@ -3,9 +3,28 @@
 //! were computed independently) and against a numerical integration of the rate equations.
 
 use lumisift::photophysics::{
-    Character, K_B_EV, Level, RateParams, Rates, average_rate, kinetics, manifold_rates,
-    marcus_rate, radiative_rate,
+    BandParams, Character, F_DARK_FLOOR, K_B_EV, Level, RateParams, Rates, assess, average_rate,
+    kinetics, log10_tadf_rate, manifold_rates, manifold_weights, marcus_rate, radiative_rate,
 };
+use lumisift::pi::estimate::{Estimate, EstimateParams, StateInfo, estimate};
+use lumisift::pi::params::PppParams;
+
+fn levels_of(states: &[StateInfo]) -> Vec<Level> {
+    states
+        .iter()
+        .map(|s| Level {
+            energy_ev: s.energy_ev,
+            f: s.osc_strength,
+            character: Character::from_label(s.label),
+        })
+        .collect()
+}
+
+/// The π-tier estimate of a carbazole–benzonitrile donor–acceptor pair (torsion-averaged).
+fn cz_bn() -> Estimate {
+    let m = lumisift::chem::parse_smiles("N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21").unwrap();
+    estimate(&m, &PppParams::default_set(), &EstimateParams::default()).unwrap()
+}
 
 fn close(a: f64, b: f64, rel: f64) -> bool {
     ((a - b) / b).abs() < rel
@@ -224,18 +243,17 @@ fn rates_are_averaged_per_angle_not_from_the_averaged_gap() {
 #[test]
 fn assessment_uses_torsion_averaged_rates_and_the_band_colour() {
     use lumisift::colour::{D65, analyse, gaussian_band};
-    use lumisift::photophysics::{BandParams, assess};
-    use lumisift::pi::estimate::{EstimateParams, estimate};
-    use lumisift::pi::params::PppParams;
-    // A donor–acceptor pair: per-angle rates are averaged (the effective k_r is the weighted
-    // mean of the per-angle k_r, plus manifold extras that are never negative).
-    let m = lumisift::chem::parse_smiles("N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21").unwrap();
-    let est = estimate(&m, &PppParams::default_set(), &EstimateParams::default()).unwrap();
+    // A donor–acceptor pair: per-angle rates are averaged (the effective k_r is S1's
+    // Boltzmann share of the singlet manifold times the weighted mean of the per-angle k_r,
+    // plus the higher singlets' own shares, which are never negative).
+    let est = cz_bn();
     let p = RateParams::default();
     let band = BandParams::default();
     let a = assess(&est, &p, &band);
     assert!(!est.angle_samples.is_empty());
-    assert!(a.rates_effective.k_r >= a.k_r_averaged.mean);
+    let s = levels_of(&est.singlets);
+    let w_s1 = manifold_weights(&s, &p)[0];
+    assert!(a.rates_effective.k_r >= w_s1 * a.k_r_averaged.mean * (1.0 - 1e-12));
     let n_links = est.links.len() as f64;
     let manual: f64 = est
         .angle_samples
@@ -252,4 +270,122 @@ fn assessment_uses_torsion_averaged_rates_and_the_band_colour() {
     )
     .unwrap();
     assert_eq!(a.colour.unwrap(), c);
+}
+
+#[test]
+fn a_dark_s2_in_the_window_dilutes_k_r_and_a_bright_one_raises_it() {
+    // Thermalised singlets: with S2 one k_BT above S1 (inside the 3 k_BT window), S1 holds
+    // only w_S1 = 1/(1 + e⁻¹) of the singlet population. A dark S2 therefore lowers the
+    // effective k_r by exactly that share (Boltzmann dilution of the emitting population);
+    // a bright S2 adds w_S2·k_r(S2). The torsion average of the S1/T1 pair is kept.
+    let mut est = cz_bn();
+    let (p, band) = (RateParams::default(), BandParams::default());
+    let kt = K_B_EV * p.temperature_k;
+    let s1 = est.singlets[0].clone();
+    est.singlets = vec![s1.clone()];
+    let alone = assess(&est, &p, &band);
+    // Alone in its window, S1's effective k_r is the torsion average itself.
+    assert!(close(
+        alone.rates_effective.k_r,
+        alone.k_r_averaged.mean,
+        1e-12
+    ));
+    let mut s2 = s1.clone();
+    s2.energy_ev = s1.energy_ev + kt;
+    s2.osc_strength = 0.0;
+    est.singlets = vec![s1.clone(), s2.clone()];
+    let dark = assess(&est, &p, &band);
+    let w1 = 1.0 / (1.0 + (-1.0f64).exp());
+    assert!(dark.rates_effective.k_r < alone.rates_effective.k_r);
+    assert!(close(
+        dark.rates_effective.k_r,
+        w1 * alone.rates_effective.k_r,
+        1e-9
+    ));
+    s2.osc_strength = 0.5;
+    est.singlets = vec![s1.clone(), s2.clone()];
+    let bright = assess(&est, &p, &band);
+    let k_s2 = radiative_rate(0.5, s2.energy_ev, p.refractive_index);
+    assert!(bright.rates_effective.k_r > alone.rates_effective.k_r);
+    assert!(close(
+        bright.rates_effective.k_r,
+        w1 * alone.rates_effective.k_r + (1.0 - w1) * k_s2,
+        1e-9
+    ));
+    // A dark S2 beyond the window changes nothing.
+    s2.energy_ev = s1.energy_ev + 3.5 * kt;
+    s2.osc_strength = 0.0;
+    est.singlets = vec![s1, s2];
+    let far = assess(&est, &p, &band);
+    assert!(close(
+        far.rates_effective.k_r,
+        alone.rates_effective.k_r,
+        1e-12
+    ));
+}
+
+#[test]
+fn rate_and_band_settings_are_validated_with_the_key_named() {
+    assert!(RateParams::default().validate().is_ok());
+    assert!(BandParams::default().validate().is_ok());
+    let bad = [
+        RateParams {
+            refractive_index: 0.9,
+            ..RateParams::default()
+        },
+        RateParams {
+            temperature_k: 0.0,
+            ..RateParams::default()
+        },
+        RateParams {
+            reorganisation_ev: f64::NAN,
+            ..RateParams::default()
+        },
+        RateParams {
+            k_nr_triplet: -1.0,
+            ..RateParams::default()
+        },
+        RateParams {
+            outcoupling: 1.2,
+            ..RateParams::default()
+        },
+        RateParams {
+            soc_le_le_cm: -0.1,
+            ..RateParams::default()
+        },
+    ];
+    let keys = [
+        "refractive_index",
+        "temperature_k",
+        "reorganisation_ev",
+        "k_nr_triplet",
+        "outcoupling",
+        "soc_le_le_cm",
+    ];
+    for (p, key) in bad.iter().zip(keys) {
+        let e = p.validate().unwrap_err();
+        assert!(e.starts_with(key), "{e}");
+    }
+    let e = BandParams {
+        fwhm_ev: 0.0,
+        ..BandParams::default()
+    }
+    .validate()
+    .unwrap_err();
+    assert!(e.starts_with("fwhm_ev"), "{e}");
+    let e = BandParams {
+        stokes_shift_ev: -0.1,
+        ..BandParams::default()
+    }
+    .validate()
+    .unwrap_err();
+    assert!(e.starts_with("stokes_shift_ev"), "{e}");
+}
+
+#[test]
+fn the_merit_floors_a_dark_state_at_f_dark_floor() {
+    let (n, t) = (1.7, 300.0);
+    let want = radiative_rate(F_DARK_FLOOR, 3.0, n).log10() - 3f64.log10();
+    assert!((log10_tadf_rate(3.0, 0.0, 0.0, n, t) - want).abs() < 1e-12);
+    assert!((log10_tadf_rate(3.0, -0.1, -0.5, n, t) - want).abs() < 1e-12);
 }

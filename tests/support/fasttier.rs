@@ -8,51 +8,63 @@
 
 use lumisift::combine::Tuple;
 use lumisift::fast::fit::Sample;
-use lumisift::fast::{CardSet, N_FEATURES, describe, fragment_card, reference_profile};
+use std::sync::OnceLock;
+
+use lumisift::fast::{CardSet, N_FEATURES, describe};
 use lumisift::fragments::Library;
 use lumisift::pi::params::PppParams;
-use lumisift::pi::torsion::TorsionParams;
 
-pub const FIXTURE: &str = concat!(
-    env!("CARGO_MANIFEST_DIR"),
-    "/tests/fixtures/fast_tier/pi_tier.csv"
-);
+/// The fixture, relative to the repository root (as recorded in the model file).
+pub const FIXTURE: &str = "tests/fixtures/fast_tier/pi_tier.csv";
 pub const SPLIT: &str = "candidate id first byte < 0x80: fit; otherwise: test";
 /// Temperature and refractive index of the merit in the fit record (the workflow defaults).
 pub const T_K: f64 = 300.0;
 pub const N_HOST: f64 = 1.7;
 
-pub fn library() -> Library {
-    lumisift::fragments::load_paths(&[concat!(env!("CARGO_MANIFEST_DIR"), "/fragments").into()])
-        .expect("the shipped library loads")
+/// The shipped library, loaded once per process.
+pub fn library() -> &'static Library {
+    static LIB: OnceLock<Library> = OnceLock::new();
+    LIB.get_or_init(|| {
+        lumisift::fragments::load_paths(&[concat!(env!("CARGO_MANIFEST_DIR"), "/fragments").into()])
+            .expect("the shipped library loads")
+    })
 }
 
-/// Cards of every fragment (sequential; about a second).
-pub fn cards(lib: &Library) -> CardSet {
-    let ppp = PppParams::default_set();
-    let cards = lib
-        .fragments
-        .iter()
-        .map(|f| fragment_card(f, &ppp).expect("card"))
-        .collect();
-    let tp = TorsionParams {
-        conjugation_scale: ppp.torsion.conjugation_scale,
-        steric_scale: ppp.torsion.steric_scale,
-        temperature_k: T_K,
-    };
-    CardSet::new(cards, &reference_profile(&ppp).expect("probe scans"), &tp)
+/// Cards of every fragment of the shipped library (about a second), computed once per process.
+pub fn cards() -> &'static CardSet {
+    static SET: OnceLock<CardSet> = OnceLock::new();
+    SET.get_or_init(|| {
+        CardSet::for_library(library(), &PppParams::default_set(), T_K).expect("probe scans")
+    })
 }
 
 /// (fitting samples, test samples) from the fixture; failed π-tier rows are skipped.
 pub fn samples(lib: &Library, set: &CardSet) -> (Vec<Sample>, Vec<Sample>) {
-    let mut rdr = csv::Reader::from_path(FIXTURE).expect("fixture readable");
+    let mut rdr =
+        csv::Reader::from_path(std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(FIXTURE))
+            .expect("fixture readable");
+    let headers = rdr.headers().expect("fixture header").clone();
+    let col = |name: &str| {
+        headers
+            .iter()
+            .position(|h| h == name)
+            .unwrap_or_else(|| panic!("fixture column {name}"))
+    };
+    let (key, id, s1, dest, f, error) = (
+        col("tuple_key"),
+        col("candidate_id"),
+        col("avg_s1_ev"),
+        col("avg_delta_est_ev"),
+        col("avg_f_s1"),
+        col("error"),
+    );
     let (mut fit, mut test) = (Vec::new(), Vec::new());
     for r in rdr.records() {
         let r = r.expect("fixture row");
-        if !r[10].is_empty() {
+        if !r[error].is_empty() {
             continue;
         }
-        let t = Tuple::parse_key(lib, &r[0]).expect("fixture tuple key");
+        let t = Tuple::parse_key(lib, &r[key]).expect("fixture tuple key");
         let mut x = [0.0; N_FEATURES];
         let Some(s) = describe(set, &t, &mut x) else {
             continue;
@@ -63,11 +75,11 @@ pub fn samples(lib: &Library, set: &CardSet) -> (Vec<Sample>, Vec<Sample>) {
             donor: s.donor,
             acceptor: s.acceptor,
             bridge: s.bridge,
-            s1_ev: num(2),
-            delta_est_ev: num(4),
-            f_s1: num(5),
+            s1_ev: num(s1),
+            delta_est_ev: num(dest),
+            f_s1: num(f),
         };
-        if u8::from_str_radix(&r[1][..2], 16).expect("hex id") < 0x80 {
+        if u8::from_str_radix(&r[id][..2], 16).expect("hex id") < 0x80 {
             fit.push(sample);
         } else {
             test.push(sample);

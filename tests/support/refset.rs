@@ -59,6 +59,7 @@ pub fn root() -> PathBuf {
 /// Every reference result that has its orbital classification.
 pub fn load() -> Vec<RefEntry> {
     let root = root();
+    let ppp = lumisift::pi::params::PppParams::default_set();
     let list = std::fs::read_to_string(root.join("reference_set.tsv")).expect("reference list");
     let mut out = Vec::new();
     // The same geometry listed twice (a dyad at a twist that is also a scan point) counts once.
@@ -95,10 +96,7 @@ pub fn load() -> Vec<RefEntry> {
                 continue;
             }
             let molecule = parse_smiles(f[1]).expect("reference SMILES parse");
-            let unit = lumisift::pi::estimate::partition(
-                &molecule,
-                &lumisift::pi::params::PppParams::default_set(),
-            );
+            let unit = lumisift::pi::estimate::partition(&molecule, &ppp);
             let n_units = unit.iter().max().map_or(0, |m| m + 1);
             let orb = &o["orbitals"];
             let unit_pop = |label: &str| -> Vec<f64> {
@@ -187,6 +185,8 @@ pub struct Metrics {
     pub n_dest: usize,
     pub dest_mae: f64,
     pub n_character: usize,
+    /// Pairs whose T1 character (CT vs LE) agrees, and that count over `n_character`.
+    pub n_character_agree: usize,
     pub character_agreement: f64,
     pub s1_spearman: f64,
     pub t1_spearman: f64,
@@ -205,17 +205,23 @@ pub struct Row {
     pub t1_ct: (f64, f64),
 }
 
-/// Spearman rank correlation (the library's, ties averaged).
-pub fn spearman(x: &[f64], y: &[f64]) -> f64 {
-    lumisift::fast::fit::spearman(x, y)
-}
-
-/// Compare the π tier (raw or corrected values) with the reference.
-pub fn metrics(
+/// Our estimate of every entry with `ppp` (None where it failed), computed once for both
+/// [`metrics`] views (each estimate carries raw and corrected values).
+pub fn estimates(
     entries: &[RefEntry],
     ppp: &lumisift::pi::params::PppParams,
+) -> Vec<Option<lumisift::pi::estimate::Estimate>> {
+    entries.iter().map(|e| ours(e, ppp).ok()).collect()
+}
+
+/// Compare the π tier (raw or corrected values of `estimates`, one per entry) with the
+/// reference.
+pub fn metrics(
+    entries: &[RefEntry],
+    estimates: &[Option<lumisift::pi::estimate::Estimate>],
     corrected: bool,
 ) -> Metrics {
+    use lumisift::fast::fit::spearman;
     let mut m = Metrics::default();
     let (mut s1o, mut s1r, mut t1o, mut t1r, mut do_, mut dr, mut fo, mut fr) = (
         vec![],
@@ -228,8 +234,8 @@ pub fn metrics(
         vec![],
     );
     let mut agree = 0usize;
-    for e in entries {
-        let Ok(est) = ours(e, ppp) else { continue };
+    for (e, est) in entries.iter().zip(estimates) {
+        let Some(est) = est else { continue };
         let (s1, t1) = if corrected {
             (est.s1_ev, est.t1_ev)
         } else {
@@ -278,6 +284,7 @@ pub fn metrics(
     m.frag_t1_mae /= m.n_frag_t1.max(1) as f64;
     m.n_dest = do_.len();
     m.dest_mae = mae(&do_, &dr);
+    m.n_character_agree = agree;
     m.character_agreement = agree as f64 / m.n_character.max(1) as f64;
     m.s1_spearman = spearman(&s1o, &s1r);
     m.t1_spearman = spearman(&t1o, &t1r);
