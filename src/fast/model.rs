@@ -94,6 +94,8 @@ pub struct BoundModel {
     /// log10 k_TADF = merit_const + 2·log10 S1 + log10(f + 10⁻⁴) − ΔEST·merit_per_ev.
     merit_const: f64,
     merit_per_ev: f64,
+    /// log10 of the f floor (a libm call kept out of the hot path).
+    log10_f_floor: f64,
 }
 
 impl FastModel {
@@ -144,6 +146,7 @@ impl FastModel {
                 .log10(),
             merit_per_ev: 1.0
                 / (crate::photophysics::K_B_EV * temperature_k * std::f64::consts::LN_10),
+            log10_f_floor: F_FLOOR.log10(),
         }
     }
 }
@@ -164,7 +167,7 @@ impl BoundModel {
         let d = (10f64.powf(y[1]) - DEST_OFFSET_EV).max(0.0);
         Some((
             // log10(f + floor) with f clamped at zero, as in predict().
-            self.merit_const + 2.0 * y[0].log10() + y[2].max(F_FLOOR.log10())
+            self.merit_const + 2.0 * y[0].log10() + y[2].max(self.log10_f_floor)
                 - d * self.merit_per_ev,
             unseen,
         ))

@@ -72,7 +72,8 @@ pub struct Assessment {
     pub band: BandParams,
 }
 
-fn levels(states: &[StateInfo]) -> Vec<Level> {
+/// The rate model's view of π-tier states (energy, f, character from the state's label).
+pub fn levels(states: &[StateInfo]) -> Vec<Level> {
     states
         .iter()
         .map(|s| Level {

@@ -12,7 +12,7 @@
 
 pub mod assess;
 
-pub use assess::{Assessment, BandParams, assess};
+pub use assess::{Assessment, BandParams, assess, levels};
 
 /// Elementary charge (C), electron mass (kg), vacuum permittivity (F/m), speed of light (m/s),
 /// ħ (eV·s), Boltzmann constant (eV/K): CODATA 2018.

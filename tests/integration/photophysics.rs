@@ -4,21 +4,11 @@
 
 use lumisift::photophysics::{
     BandParams, Character, F_DARK_FLOOR, K_B_EV, Level, RateParams, Rates, assess, average_rate,
-    kinetics, log10_tadf_rate, manifold_rates, manifold_weights, marcus_rate, radiative_rate,
+    kinetics, levels, log10_tadf_rate, manifold_rates, manifold_weights, marcus_rate,
+    radiative_rate,
 };
-use lumisift::pi::estimate::{Estimate, EstimateParams, StateInfo, estimate};
+use lumisift::pi::estimate::{Estimate, EstimateParams, estimate};
 use lumisift::pi::params::PppParams;
-
-fn levels_of(states: &[StateInfo]) -> Vec<Level> {
-    states
-        .iter()
-        .map(|s| Level {
-            energy_ev: s.energy_ev,
-            f: s.osc_strength,
-            character: Character::from_label(s.label),
-        })
-        .collect()
-}
 
 /// The π-tier estimate of a carbazole–benzonitrile donor–acceptor pair (torsion-averaged).
 fn cz_bn() -> Estimate {
@@ -251,7 +241,7 @@ fn assessment_uses_torsion_averaged_rates_and_the_band_colour() {
     let band = BandParams::default();
     let a = assess(&est, &p, &band);
     assert!(!est.angle_samples.is_empty());
-    let s = levels_of(&est.singlets);
+    let s = levels(&est.singlets);
     let w_s1 = manifold_weights(&s, &p)[0];
     assert!(a.rates_effective.k_r >= w_s1 * a.k_r_averaged.mean * (1.0 - 1e-12));
     let n_links = est.links.len() as f64;
