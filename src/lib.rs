@@ -13,6 +13,7 @@
 //! assert!((f.mol_weight - 268.318).abs() < 0.01);
 //! ```
 
+pub mod calibrate;
 pub mod campaign;
 pub mod chem;
 pub mod colour;
@@ -24,4 +25,7 @@ pub mod geometry;
 pub mod model;
 pub mod photophysics;
 pub mod pi;
+pub mod qc;
+pub mod rank;
 pub mod report;
+pub mod synth;

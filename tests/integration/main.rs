@@ -8,6 +8,7 @@ mod fixture_rdkit;
 mod proptests;
 
 mod aromaticity;
+mod calibrate;
 mod campaign;
 mod colour;
 mod combine;
@@ -23,4 +24,7 @@ mod pi_engine;
 mod pi_physics;
 mod pi_torsion;
 mod pi_typing;
+mod qc_readers;
+mod rank;
 mod stereo;
+mod synth;

@@ -1,0 +1,1 @@
+//! Tests of `rank` (issue 6/7); filled with the module.
