@@ -162,13 +162,29 @@ enum Command {
         json: bool,
     },
     /// Rank sensitiser–emitter pairs: every estimated candidate of a store (its stored emission
-    /// band as the donor) against terminal emitters' absorption spectra, by Förster radius.
+    /// band as the donor) against terminal emitters, by Förster radius. Terminal emitters:
+    /// absorption CSV files, SMILES estimated here (--emitter-smiles), or the store's own
+    /// bright candidates (--from-store); at least one source.
     Pairs {
         store: PathBuf,
         /// Absorption CSV files (wavelength_nm, ε in M⁻¹ cm⁻¹), one per terminal emitter; the
         /// file stem names it.
-        #[arg(required = true)]
         emitters: Vec<PathBuf>,
+        /// A SMILES file of terminal emitters (`SMILES name` per line; `#` comments): each is
+        /// estimated by the π tier and its absorption built from the computed singlets.
+        #[arg(long)]
+        emitter_smiles: Option<PathBuf>,
+        /// Use the store's estimated candidates whose brightest singlet has f ≥ --min-emitter-f
+        /// as terminal emitters too (absorption from their stored singlets).
+        #[arg(long)]
+        from_store: bool,
+        /// Brightest-singlet oscillator strength a store candidate needs to serve as a terminal
+        /// emitter (a choice of this tool: fluorescent emitters are bright).
+        #[arg(long, default_value_t = 0.1)]
+        min_emitter_f: f64,
+        /// FWHM (eV) of each computed absorption band.
+        #[arg(long, default_value_t = lumisift::forster::ABSORPTION_FWHM_EV)]
+        absorption_fwhm: f64,
         /// Orientation factor κ² (default 2/3: isotropic, dynamically averaged).
         #[arg(long, default_value_t = KAPPA2_ISOTROPIC)]
         kappa2: f64,
@@ -241,10 +257,26 @@ fn main() -> ExitCode {
         Command::Pairs {
             store,
             emitters,
+            emitter_smiles,
+            from_store,
+            min_emitter_f,
+            absorption_fwhm,
             kappa2,
             top,
             json,
-        } => pairs(&store, &emitters, kappa2, top, json),
+        } => pairs(
+            &store,
+            &EmitterSources {
+                spectra: emitters,
+                smiles_file: emitter_smiles,
+                from_store,
+                min_f: min_emitter_f,
+                fwhm_ev: absorption_fwhm,
+            },
+            kappa2,
+            top,
+            json,
+        ),
         Command::Colour {
             spectrum,
             band,
@@ -586,12 +618,29 @@ fn inspect(
     ExitCode::SUCCESS
 }
 
-fn pairs(store: &Path, emitters: &[PathBuf], kappa2: f64, top: usize, json: bool) -> ExitCode {
+/// Where `pairs` takes its terminal emitters from.
+struct EmitterSources {
+    spectra: Vec<PathBuf>,
+    smiles_file: Option<PathBuf>,
+    from_store: bool,
+    min_f: f64,
+    fwhm_ev: f64,
+}
+
+fn pairs(store: &Path, src: &EmitterSources, kappa2: f64, top: usize, json: bool) -> ExitCode {
     if !(0.0..=4.0).contains(&kappa2) {
         return fail("--kappa2 in [0, 4]");
     }
+    if src.spectra.is_empty() && src.smiles_file.is_none() && !src.from_store {
+        return fail(
+            "no terminal emitters: give absorption CSV files, --emitter-smiles FILE or --from-store",
+        );
+    }
+    if !(src.fwhm_ev > 0.0 && src.fwhm_ev.is_finite()) {
+        return fail("--absorption-fwhm must be positive (eV)");
+    }
     let mut specs = Vec::new();
-    for p in emitters {
+    for p in &src.spectra {
         match read_spectrum(p, Units::Energy) {
             Ok(s) => specs.push((
                 p.file_stem()
@@ -601,10 +650,51 @@ fn pairs(store: &Path, emitters: &[PathBuf], kappa2: f64, top: usize, json: bool
             Err(e) => return fail(e),
         }
     }
+    if let Some(path) = &src.smiles_file {
+        let text = match std::fs::read_to_string(path) {
+            Ok(t) => t,
+            Err(e) => return fail(format!("{}: {e}", path.display())),
+        };
+        let ppp = lumisift::pi::params::PppParams::default_set();
+        let mut bad = 0usize;
+        for (k, line) in text.lines().enumerate() {
+            let line = line.trim();
+            if line.is_empty() || line.starts_with('#') {
+                continue;
+            }
+            let mut parts = line.split_whitespace();
+            let smi = parts.next().unwrap_or_default();
+            let name = parts.collect::<Vec<_>>().join(" ");
+            let name = if name.is_empty() {
+                format!("line{}", k + 1)
+            } else {
+                name
+            };
+            match lumisift::report::pairs::smiles_absorber(smi, &ppp, src.fwhm_ev) {
+                Ok(s) => specs.push((name, s)),
+                Err(e) => {
+                    bad += 1;
+                    eprintln!("{}:{}: skipped: {e}", path.display(), k + 1);
+                }
+            }
+        }
+        if bad > 0 {
+            eprintln!("{bad} terminal emitter line(s) skipped");
+        }
+    }
     let st = match campaign::store::Store::open_existing(store) {
         Ok(s) => s,
         Err(e) => return fail(e),
     };
+    if src.from_store {
+        match lumisift::report::pairs::store_absorbers(st.connection(), src.min_f, src.fwhm_ev) {
+            Ok((mut a, _)) => specs.append(&mut a),
+            Err(e) => return fail(format!("{}: {e}", store.display())),
+        }
+    }
+    if specs.is_empty() {
+        return fail("no usable terminal emitter (see the messages above)");
+    }
     let (ranked, skipped) =
         match lumisift::report::pairs::rank_pairs(st.connection(), &specs, kappa2) {
             Ok(x) => x,

@@ -659,6 +659,37 @@ n_states = 4
         2.0 / 3.0,
     );
     assert!((p0["r0_nm"].as_f64().unwrap() - r0).abs() < 1e-9);
+    // Terminal emitters built from π-tier singlets: the store's own bright candidates (never
+    // paired with themselves) and a SMILES file (a bad line is reported with its number and
+    // skipped; the good one is used).
+    let smi = d.join("terminal.smi");
+    std::fs::write(
+        &smi,
+        "# name after SMILES\nc1ccc2cc3ccccc3cc2c1 tricyclic\nC1CC( bad\n",
+    )
+    .unwrap();
+    let out = succeed([
+        "pairs".as_ref(),
+        d.join("store.sqlite").as_os_str(),
+        "--from-store".as_ref(),
+        "--min-emitter-f".as_ref(),
+        "0".as_ref(),
+        "--emitter-smiles".as_ref(),
+        smi.as_os_str(),
+        "--top".as_ref(),
+        "1000".as_ref(),
+        "--json".as_ref(),
+    ]);
+    assert!(String::from_utf8_lossy(&out.stderr).contains("terminal.smi:3: skipped"));
+    let pairs: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let pairs = pairs.as_array().unwrap();
+    assert!(pairs.iter().any(|p| p["emitter"] == "tricyclic"));
+    assert!(pairs.iter().any(|p| p["emitter"] != "tricyclic"));
+    assert!(
+        pairs
+            .iter()
+            .all(|p| p["emitter"] != p["candidate_id"] && p["r0_nm"].as_f64().unwrap() > 0.0)
+    );
     // Running again does nothing new; other parameters add rows, never overwrite.
     let out = run(&wf, &[]);
     assert!(String::from_utf8_lossy(&out.stderr).contains("2 already done, 0 written"));
