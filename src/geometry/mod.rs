@@ -11,6 +11,7 @@
 
 mod layout;
 mod lengths;
+pub mod perceive;
 mod readers;
 pub mod steric;
 mod writers;

@@ -299,3 +299,88 @@ fn every_shipped_donor_acceptor_pair_has_a_clash_free_twist() {
         bad.join("\n")
     );
 }
+
+/// Every coordinate displaced by a seeded uniform amount in ±`jitter` Å.
+fn jitter(atoms: &mut [(u8, [f64; 3])], jitter: f64, seed: u64) {
+    let mut state = seed ^ 0x9E37_79B9_7F4A_7C15;
+    for (_, p) in atoms.iter_mut() {
+        for c in p.iter_mut() {
+            // 64-bit LCG (Knuth's MMIX constants); the top 53 bits as a uniform in [0, 1).
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            let u = (state >> 11) as f64 / (1u64 << 53) as f64;
+            *c += (2.0 * u - 1.0) * jitter;
+        }
+    }
+}
+
+#[test]
+fn perceived_skeletons_match_the_candidate_and_only_it() {
+    // Candidates of the shipped library (every 37th D–A and D–A–D product, deterministic); the
+    // geometry stage's equilibrium-twist XYZ (as `inspect --write-xyz` writes it) with every
+    // coordinate displaced by up to ±0.05 Å per coordinate (the size of force-field vs DFT differences;
+    // common practice) is read back and perceived (Cordero covalent radii + 0.4 Å); its key
+    // must equal the key of the candidate's SMILES graph and no other sampled candidate's.
+    use lumisift::combine::{EnumerateParams, Enumerator, TupleEvent, assemble};
+    use lumisift::geometry::perceive::{skeleton_from_coordinates, skeleton_key, skeleton_of};
+    use lumisift::model::Architecture;
+    use lumisift::pi::estimate::{EstimateParams, estimate};
+    use lumisift::pi::params::PppParams;
+    use std::ops::ControlFlow;
+    let lib = lumisift::fragments::load_paths(&[
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("fragments")
+    ])
+    .unwrap();
+    let p = EnumerateParams {
+        architectures: vec![Architecture::DA, Architecture::DAD],
+        ..EnumerateParams::default()
+    };
+    let mut mols = Vec::new();
+    let mut k = 0usize;
+    Enumerator::new(&lib, &p).unwrap().for_each(|e| {
+        if let TupleEvent::Admitted(t) = e {
+            k += 1;
+            if k % 37 == 0 {
+                mols.push(assemble(&lib, &t).mol);
+            }
+        }
+        if mols.len() >= 16 {
+            ControlFlow::Break(())
+        } else {
+            ControlFlow::Continue(())
+        }
+    });
+    assert_eq!(mols.len(), 16);
+    let ppp = PppParams::default_set();
+    let keys: Vec<String> = mols.iter().map(|m| skeleton_key(&skeleton_of(m))).collect();
+    for (i, m) in mols.iter().enumerate() {
+        let est = estimate(m, &ppp, &EstimateParams::default()).unwrap();
+        let text = lumisift::report::inspect::geometry_xyz(m, &est, "perception test");
+        let mut atoms: Vec<(u8, [f64; 3])> = lumisift::geometry::parse_xyz(&text)
+            .unwrap()
+            .into_iter()
+            .map(|a| {
+                (
+                    lumisift::chem::element::from_symbol(&a.symbol).unwrap(),
+                    a.position,
+                )
+            })
+            .collect();
+        jitter(&mut atoms, 0.05, i as u64);
+        let key = skeleton_key(&skeleton_from_coordinates(&atoms).unwrap());
+        let canonical = lumisift::chem::canonical_smiles(m);
+        assert_eq!(key, keys[i], "{canonical}");
+        for (j, other) in keys.iter().enumerate() {
+            assert!(
+                j == i || *other != key,
+                "{canonical} also matches candidate {j}"
+            );
+        }
+    }
+    // Broken input is an error naming the atom, never a panic.
+    let err = skeleton_from_coordinates(&[(6, [0.0; 3]), (6, [0.1, 0.0, 0.0])]).unwrap_err();
+    assert!(err.contains("atoms 1 and 2"), "{err}");
+    let err = skeleton_from_coordinates(&[(6, [0.0; 3]), (1, [5.0, 0.0, 0.0])]).unwrap_err();
+    assert!(err.contains("atom 2 (H)"), "{err}");
+}
