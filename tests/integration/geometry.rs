@@ -341,7 +341,7 @@ fn perceived_skeletons_match_the_candidate_and_only_it() {
     Enumerator::new(&lib, &p).unwrap().for_each(|e| {
         if let TupleEvent::Admitted(t) = e {
             k += 1;
-            if k % 37 == 0 {
+            if k.is_multiple_of(37) {
                 mols.push(assemble(&lib, &t).mol);
             }
         }
