@@ -69,6 +69,20 @@ enum Command {
         /// candidate and parameter set) as CSV to this file.
         #[arg(long)]
         estimates: Option<PathBuf>,
+        /// Instead of the candidate table, write quantum-chemistry jobs into this folder:
+        /// `<id>.xyz` (equilibrium-twist start geometry), `<id>.<ext>` from --template, and
+        /// manifest.csv, for the candidates listed in --select.
+        #[arg(long, value_name = "DIR", requires_all = ["template", "select"])]
+        for_qc: Option<PathBuf>,
+        /// Job template with placeholders {{id}}, {{smiles}}, {{formula}}, {{charge}},
+        /// {{multiplicity}}, {{natoms}}, {{coords}} (see DEVELOPERS.md); its extension names
+        /// the job files.
+        #[arg(long, value_name = "FILE")]
+        template: Option<PathBuf>,
+        /// Candidates to prepare: a file with one candidate id or SMILES per line (`#`
+        /// comments), e.g. the output of `suggest --write-ids`.
+        #[arg(long, value_name = "FILE")]
+        select: Option<PathBuf>,
     },
     /// One molecule in depth: units and their roles, torsion of each link, excited states
     /// (S1, T1, ΔEST, f, charge-transfer character) at the equilibrium twist, torsion averages.
@@ -237,9 +251,17 @@ fn main() -> ExitCode {
         Command::Merge { out, shards } => merge(&out, &shards),
         Command::Export {
             store,
+            for_qc: Some(dir),
+            template: Some(template),
+            select: Some(select),
+            ..
+        } => export_for_qc(&store, &dir, &template, &select),
+        Command::Export {
+            store,
             csv,
             smi,
             estimates,
+            ..
         } => export(&store, csv, smi, estimates),
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
@@ -500,6 +522,52 @@ fn export(
     }
     eprintln!("exported {n} candidates");
     ExitCode::SUCCESS
+}
+
+fn export_for_qc(store: &Path, dir: &Path, template: &Path, select: &Path) -> ExitCode {
+    use lumisift::report::qcjobs::{JobTemplate, write_jobs};
+    let tpl = match std::fs::read_to_string(template)
+        .map_err(|e| e.to_string())
+        .and_then(|t| JobTemplate::parse(&t))
+    {
+        Ok(t) => t,
+        Err(e) => return fail(format!("{}: {e}", template.display())),
+    };
+    let ext = template
+        .extension()
+        .map_or_else(|| "inp".to_string(), |e| e.to_string_lossy().into_owned());
+    let requested: Vec<String> = match std::fs::read_to_string(select) {
+        Ok(t) => t
+            .lines()
+            .map(str::trim)
+            .filter(|l| !l.is_empty() && !l.starts_with('#'))
+            .map(|l| l.split_whitespace().next().unwrap_or_default().to_string())
+            .collect(),
+        Err(e) => return fail(format!("{}: {e}", select.display())),
+    };
+    let st = match campaign::store::Store::open_existing(store) {
+        Ok(s) => s,
+        Err(e) => return fail(e),
+    };
+    match write_jobs(st.connection(), &requested, &tpl, dir, &ext) {
+        Ok(w) => {
+            for (req, why) in &w.failed {
+                eprintln!("{}: skipped '{req}': {why}", select.display());
+            }
+            eprintln!(
+                "wrote {} job(s) to {} ({} skipped)",
+                w.written.len(),
+                dir.display(),
+                w.failed.len()
+            );
+            if w.failed.is_empty() {
+                ExitCode::SUCCESS
+            } else {
+                ExitCode::from(1)
+            }
+        }
+        Err(e) => fail(e),
+    }
 }
 
 /// Create `path` and hand a buffered writer to `write`; errors name the file when it cannot

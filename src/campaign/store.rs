@@ -1,6 +1,6 @@
 //! The campaign store: one SQLite file (WAL journal) that every stage reads and writes.
 //!
-//! Tables (schema version 1):
+//! Tables (schema version 2; version-1 stores are migrated on open):
 //! - `meta(key, value)`: `app = lumisift`, `schema_version`.
 //! - `runs`: one row per invocation (tool version, workflow text, parameters, shard).
 //! - `candidates(seq, id, canonical_smiles, formula, mol_weight, heavy_atoms)`: one row per
@@ -17,6 +17,13 @@
 //! - `stage_status(stage, param_hash, total_chunks, counts_json, updated_utc)`.
 //! - `results(candidate_id, stage, param_hash, data)`: per-candidate results of later stages,
 //!   keyed so re-running a stage with other parameters adds rows and never overwrites.
+//! - (version 2) `qc_sources`: one row per imported file (content hash unique, so re-importing
+//!   the same bytes is idempotent; format = program or `table`, partial flag, diagnostics);
+//!   `qc_states(source_id, item, state, candidate_id, match_status, match_json, kind, method,
+//!   conditions, multiplicity, label, energy_ev, osc_strength)`: every imported state or table
+//!   row (item = calculation index or table line), with its match (candidate NULL when
+//!   ambiguous, conflicting or unmatched, so a later ingest can match it); `calibrations`: each
+//!   fitted calibration (kind, model and report as JSON).
 //!
 //! A file that is not SQLite, or SQLite without our `meta`, is refused before anything is
 //! written to it.
@@ -28,7 +35,7 @@ use rusqlite::{Connection, OpenFlags, OptionalExtension, params};
 
 use super::error::CampaignError;
 
-pub const SCHEMA_VERSION: u32 = 1;
+pub const SCHEMA_VERSION: u32 = 2;
 /// SQLite `application_id` of campaign stores ("LUMS").
 pub const APPLICATION_ID: i32 = 0x4C55_4D53;
 
@@ -75,6 +82,40 @@ const MIGRATIONS: &[&str] = &[
         param_hash TEXT NOT NULL,
         data TEXT NOT NULL,
         PRIMARY KEY(candidate_id, stage, param_hash)) WITHOUT ROWID;",
+    // 1 -> 2: imported quantum-chemistry / measured results and calibrations.
+    "CREATE TABLE qc_sources(
+        source_id INTEGER PRIMARY KEY,
+        content_hash TEXT NOT NULL UNIQUE,
+        path TEXT NOT NULL,
+        format TEXT NOT NULL,
+        version TEXT,
+        method TEXT,
+        partial INTEGER NOT NULL,
+        imported_utc TEXT NOT NULL,
+        diagnostics_json TEXT NOT NULL);
+     CREATE TABLE qc_states(
+        source_id INTEGER NOT NULL,
+        item INTEGER NOT NULL,
+        state INTEGER NOT NULL,
+        candidate_id TEXT,
+        match_status TEXT NOT NULL,
+        match_json TEXT NOT NULL,
+        kind TEXT NOT NULL,
+        method TEXT,
+        conditions TEXT,
+        multiplicity INTEGER,
+        label TEXT,
+        energy_ev REAL NOT NULL,
+        osc_strength REAL,
+        PRIMARY KEY(source_id, item, state)) WITHOUT ROWID;
+     CREATE INDEX qc_states_by_candidate ON qc_states(candidate_id);
+     CREATE TABLE calibrations(
+        calibration_id INTEGER PRIMARY KEY,
+        kind TEXT NOT NULL,
+        created_utc TEXT NOT NULL,
+        n_points INTEGER NOT NULL,
+        model_json TEXT NOT NULL,
+        report_json TEXT NOT NULL);",
 ];
 
 /// One row of an enumeration chunk.
@@ -104,7 +145,7 @@ pub struct Store {
     conn: Connection,
 }
 
-fn now_utc() -> String {
+pub(crate) fn now_utc() -> String {
     // Seconds since the epoch; formatting a calendar date needs no extra dependency here.
     let secs = std::time::SystemTime::now()
         .duration_since(std::time::UNIX_EPOCH)

@@ -4,6 +4,7 @@ pub mod export;
 pub mod inspect;
 pub mod molinfo;
 pub mod pairs;
+pub mod qcjobs;
 
 use rusqlite::Connection;
 
@@ -35,4 +36,16 @@ pub fn for_each_estimate(
         f(&id, &smi, &hash, &v)?;
     }
     Ok(())
+}
+
+/// Every candidate of a store as (id, canonical SMILES), in store order.
+pub fn store_candidates(conn: &Connection) -> Result<Vec<(String, String)>, String> {
+    let mut st = conn
+        .prepare("SELECT id, canonical_smiles FROM candidates ORDER BY seq")
+        .map_err(|e| e.to_string())?;
+    let rows = st
+        .query_map([], |r| Ok((r.get::<_, String>(0)?, r.get::<_, String>(1)?)))
+        .map_err(|e| e.to_string())?;
+    rows.collect::<Result<Vec<_>, _>>()
+        .map_err(|e| e.to_string())
 }

@@ -2,48 +2,12 @@
 //! merge, export, and bad inputs (each a clear error naming file and line or key, no damage).
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Stdio};
-use std::sync::atomic::{AtomicUsize, Ordering};
+use std::process::Stdio;
 use std::time::{Duration, Instant};
 
 use rusqlite::{Connection, OpenFlags};
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_lumisift"))
-}
-
-/// Run the binary with `args` and require success.
-fn succeed<I, S>(args: I) -> std::process::Output
-where
-    I: IntoIterator<Item = S>,
-    S: AsRef<std::ffi::OsStr>,
-{
-    let out = bin().args(args).output().unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    out
-}
-
-static COUNTER: AtomicUsize = AtomicUsize::new(0);
-
-fn temp_dir(tag: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!(
-        "lumisift-campaign-{}-{}-{}",
-        std::process::id(),
-        tag,
-        COUNTER.fetch_add(1, Ordering::SeqCst)
-    ));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn repo() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
+use crate::support_bin::{bin, repo, succeed, temp_dir};
 
 /// A workflow over the shipped library, limited to a few thousand tuples, small chunks.
 fn workflow(dir: &Path, chunk: usize, extra: &str) -> PathBuf {

@@ -1,11 +1,9 @@
 //! End-to-end tests of the real binary.
 
 use std::io::Write;
-use std::process::{Command, Stdio};
+use std::process::Stdio;
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_lumisift"))
-}
+use crate::support_bin::bin;
 
 /// Run the binary, require success, parse its stdout as JSON.
 fn json_of(args: &[&str]) -> serde_json::Value {

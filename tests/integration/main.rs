@@ -2,6 +2,8 @@
 
 #[path = "../support/refset.rs"]
 mod refset;
+#[path = "../support/bin.rs"]
+mod support_bin;
 
 mod cli;
 mod fixture_rdkit;
@@ -24,6 +26,7 @@ mod pi_engine;
 mod pi_physics;
 mod pi_torsion;
 mod pi_typing;
+mod qc_ingest;
 mod qc_readers;
 mod rank;
 mod stereo;
