@@ -684,7 +684,8 @@ fn run_estimate(
 /// holding older records recomputes instead of mixing layouts (2: raw values, ³LE gaps,
 /// states, per-angle samples, validation and flags; 3: photophysics with default rate and
 /// band settings; 4: effective rates dilute the S1/T1 pair by its Boltzmann share of the
-/// thermalised manifold).
+/// thermalised manifold; later additions that do not change a field's meaning, such as the S1
+/// hole/electron populations per atom, keep the version).
 pub const ESTIMATE_RECORD_VERSION: u32 = 4;
 
 /// The stored record of one estimate (field names carry units).
@@ -732,6 +733,9 @@ fn estimate_record(
         "singlets": states(&e.singlets),
         "triplets": states(&e.triplets),
         "angle_samples": e.angle_samples,
+        // Per atom (molecule order, hydrogens implicit), 4 decimals: for structure drawings.
+        "s1_hole_by_atom": e.s1_hole_by_atom.iter().map(|x| (x * 1e4).round() / 1e4).collect::<Vec<_>>(),
+        "s1_electron_by_atom": e.s1_electron_by_atom.iter().map(|x| (x * 1e4).round() / 1e4).collect::<Vec<_>>(),
         "unvalidated": e.unvalidated,
         "flags": e.flags,
         "parameters": e.parameters,

@@ -72,3 +72,36 @@ pub fn characterise(
         electron,
     }
 }
+
+/// Hole and electron populations per π site (each sums to 1): hole_μ = Σ_ν T_μν²,
+/// electron_ν = Σ_μ T_μν² with T the transition density of [`characterise`], normalised.
+/// Invariant to the sign of the state; for drawing where S1 takes its electron from and puts
+/// it.
+pub fn site_populations(
+    scf: &ScfResult,
+    cis: &CisResult,
+    state: &ExcitedState,
+) -> (Vec<f64>, Vec<f64>) {
+    let n = scf.coeffs.nrows();
+    let (no, nv) = (cis.occ.len(), cis.vir.len());
+    let co = scf.coeffs.select_columns(&cis.occ);
+    let cv = scf.coeffs.select_columns(&cis.vir);
+    let xm = DMatrix::from_row_slice(no, nv, state.amplitudes.as_slice());
+    let t = co * xm * cv.transpose();
+    let mut hole = vec![0.0; n];
+    let mut electron = vec![0.0; n];
+    for mu in 0..n {
+        for nu in 0..n {
+            let v = t[(mu, nu)] * t[(mu, nu)];
+            hole[mu] += v;
+            electron[nu] += v;
+        }
+    }
+    for v in [&mut hole, &mut electron] {
+        let total: f64 = v.iter().sum();
+        if total > 0.0 {
+            v.iter_mut().for_each(|x| *x /= total);
+        }
+    }
+    (hole, electron)
+}

@@ -146,6 +146,11 @@ pub struct Estimate {
     pub angle_samples: Vec<AngleSample>,
     /// Coordinates (Å, one per atom, hydrogens implicit) of the equilibrium geometry.
     pub geometry: Vec<[f64; 3]>,
+    /// S1 hole and electron populations per atom at the equilibrium geometry (each sums to
+    /// 1; 0 on atoms without a π site; empty without a singlet): where S1 takes its electron
+    /// from and puts it.
+    pub s1_hole_by_atom: Vec<f64>,
+    pub s1_electron_by_atom: Vec<f64>,
     /// Plain PPP-CIS at the equilibrium twists, without the corrections (for comparison).
     pub raw_s1_ev: f64,
     pub raw_t1_ev: f64,
@@ -445,6 +450,9 @@ struct Snapshot {
     /// Lowest singlet and triplet (eV) of plain CIS (no corrections) on the same SCF, when
     /// asked for.
     raw: Option<(f64, f64)>,
+    /// S1 hole and electron populations per atom of the molecule (0 on atoms without a π
+    /// site); empty without a singlet.
+    s1_sites: (Vec<f64>, Vec<f64>),
 }
 
 /// The states at `coords` (corrected CIS, `p.n_states` roots each) and, with `with_raw`, the
@@ -527,7 +535,21 @@ fn states_at(
     } else {
         0.0
     };
+    let s1_sites = match x.singlets.first() {
+        Some(s1) => {
+            let (h_site, e_site) = super::analysis::site_populations(&r, &x, s1);
+            let mut hole = vec![0.0; mol.atom_count()];
+            let mut electron = vec![0.0; mol.atom_count()];
+            for (k, &a) in built.site_atom.iter().enumerate() {
+                hole[a] = h_site[k];
+                electron[a] = e_site[k];
+            }
+            (hole, electron)
+        }
+        None => (Vec::new(), Vec::new()),
+    };
     Ok(Snapshot {
+        s1_sites,
         density: r.density.clone(),
         homo: r.energies[h],
         lumo: if l < n { r.energies[l] } else { f64::NAN },
@@ -832,6 +854,8 @@ pub fn estimate(mol: &Molecule, ppp: &PppParams, p: &EstimateParams) -> Result<E
         avg_f_s1: af,
         angle_samples: samples,
         geometry: eq_coords.points.clone(),
+        s1_hole_by_atom: at_eq.s1_sites.0,
+        s1_electron_by_atom: at_eq.s1_sites.1,
         parameters: ppp.name.clone(),
     })
 }

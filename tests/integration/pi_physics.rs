@@ -147,3 +147,40 @@ fn energies_do_not_depend_on_atom_numbering() {
     assert!((a.s_ct - b.s_ct).abs() < 1e-8);
     assert!((a.t_ct - b.t_ct).abs() < 1e-8);
 }
+
+#[test]
+fn s1_hole_sits_on_the_donor_and_electron_on_the_acceptor_when_twisted() {
+    // A CT state of a perpendicular D–A pair puts the hole on the donor and the electron on the
+    // acceptor (the Ω analysis above, resolved by atom); populations sum to 1 and vanish on
+    // atoms without a π site (the nitrile N keeps its own site; none here lacks one).
+    use lumisift::pi::estimate::{EstimateParams, estimate};
+    let mol = parse_smiles("N#Cc1ccc(cc1)-n1c2ccccc2c2ccccc21").unwrap();
+    let est = estimate(
+        &mol,
+        &PppParams::default_set(),
+        &EstimateParams {
+            twist_deg: Some(90.0),
+            ..EstimateParams::default()
+        },
+    )
+    .unwrap();
+    let (h, e) = (&est.s1_hole_by_atom, &est.s1_electron_by_atom);
+    assert_eq!(h.len(), mol.atom_count());
+    assert!((h.iter().sum::<f64>() - 1.0).abs() < 1e-9);
+    assert!((e.iter().sum::<f64>() - 1.0).abs() < 1e-9);
+    assert!(h.iter().chain(e.iter()).all(|&x| x >= 0.0));
+    let on = |role: &str, v: &[f64]| -> f64 {
+        est.units
+            .iter()
+            .filter(|u| u.role == role)
+            .flat_map(|u| u.atoms.iter())
+            .map(|&a| v[a])
+            .sum()
+    };
+    assert!(on("donor", h) > 0.95, "hole on donor {}", on("donor", h));
+    assert!(
+        on("acceptor", e) > 0.95,
+        "electron on acceptor {}",
+        on("acceptor", e)
+    );
+}
