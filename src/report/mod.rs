@@ -1,6 +1,8 @@
 //! Writers of tables and files for people and other programs. Only this layer writes CSV.
 
 pub mod export;
+pub mod figures;
+pub mod html;
 pub mod inspect;
 pub mod molinfo;
 pub mod pairs;

@@ -29,5 +29,6 @@ mod pi_typing;
 mod qc_ingest;
 mod qc_readers;
 mod rank;
+mod report_html;
 mod stereo;
 mod synth;
