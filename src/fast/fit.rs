@@ -6,10 +6,13 @@ use nalgebra::{DMatrix, DVector};
 /// Ridge regression: minimise ‖Xw − y‖² + α‖w‖² with the first column (the constant) not
 /// penalised; columns are standardised before the penalty is applied so α means the same for
 /// every descriptor. Returns weights in the original units. `rows` are descriptor vectors.
+/// With α > 0 the system is positive definite, so more columns than rows are allowed (the
+/// one-hot fragment columns of a small calibration set); with α = 0 at least p + 1 rows are
+/// required.
 pub fn ridge(rows: &[Vec<f64>], y: &[f64], alpha: f64) -> Option<Vec<f64>> {
     let n = rows.len();
     let p = rows.first()?.len();
-    if n <= p || y.len() != n {
+    if y.len() != n || (n <= p && alpha <= 0.0) || n == 0 {
         return None;
     }
     // Standardise columns 1.. (column 0 is the constant).
