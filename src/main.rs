@@ -11,6 +11,8 @@ use lumisift::colour::{Spectrum, Units};
 use lumisift::forster::KAPPA2_ISOTROPIC;
 use lumisift::photophysics::{BandParams, RateParams};
 
+mod cli;
+
 /// The library allocates many small, short-lived vectors per molecule; mimalloc serves them
 /// markedly faster than the system allocator on batch runs.
 #[global_allocator]
@@ -209,6 +211,63 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Import quantum-chemistry output files (Gaussian, ORCA, Q-Chem, NWChem, GAMESS, Firefly,
+    /// ADF, DALTON, Jaguar, Turbomole; autodetected) and neutral results tables (*.csv) into a
+    /// store, each state matched to its candidate (id in the file name, SMILES, or the
+    /// geometry's heavy-atom skeleton). Re-importing a file is idempotent. With --show, print
+    /// what each file yields without touching any store.
+    Ingest {
+        /// Only show what the files yield (no store; every path is a file or folder to read).
+        #[arg(long)]
+        show: bool,
+        /// STORE then files or folders (recursive); with --show, files or folders only.
+        #[arg(required = true)]
+        paths: Vec<PathBuf>,
+        /// What the program outputs' energies are (table rows carry their own kind).
+        #[arg(long, default_value = "vertical_absorption")]
+        kind: String,
+        /// Conditions stored with the program outputs (e.g. "gas phase, ground-state geometry").
+        #[arg(long)]
+        conditions: Option<String>,
+        /// Output as JSON.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Fit corrections of the π-tier S1, ΔEST and f on the imported results (per kind, never
+    /// mixing kinds; model and 90 % intervals chosen by cross-validation grouped by fragment),
+    /// and apply them to every estimated candidate.
+    Calibrate {
+        store: PathBuf,
+        /// Only this kind (default: every kind with matched results).
+        #[arg(long)]
+        kind: Option<String>,
+        /// Coverage of the prediction intervals.
+        #[arg(long, default_value_t = 0.9)]
+        coverage: f64,
+        /// Output as JSON.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Pick the next candidates to compute: upper confidence bound μ + β·σ on log10 k_TADF
+    /// (calibrated where possible), no two picks more similar than the Tanimoto limit.
+    Suggest {
+        store: PathBuf,
+        /// How many to pick.
+        #[arg(long, default_value_t = 10)]
+        count: usize,
+        /// Weight β of the uncertainty.
+        #[arg(long, default_value_t = 1.0)]
+        beta: f64,
+        /// Largest Tanimoto similarity to a computed or already picked candidate.
+        #[arg(long, default_value_t = 0.7)]
+        max_similarity: f64,
+        /// Write `id SMILES` lines here (input for `export --for-qc --select`).
+        #[arg(long, value_name = "FILE")]
+        write_ids: Option<PathBuf>,
+        /// Output as JSON.
+        #[arg(long)]
+        json: bool,
+    },
     /// Fragment library tools.
     Fragments {
         #[command(subcommand)]
@@ -266,6 +325,45 @@ fn main() -> ExitCode {
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
         } => fragments_check(&paths),
+        Command::Ingest {
+            show: true,
+            paths,
+            json,
+            ..
+        } => cli::qc::show(&paths, json),
+        Command::Ingest {
+            paths,
+            kind,
+            conditions,
+            json,
+            ..
+        } => match paths.split_first() {
+            Some((store, rest)) if !rest.is_empty() => {
+                cli::qc::ingest_cmd(store, rest, &kind, conditions, json)
+            }
+            _ => fail("ingest STORE PATH...: give the store and at least one file or folder"),
+        },
+        Command::Calibrate {
+            store,
+            kind,
+            coverage,
+            json,
+        } => cli::qc::calibrate_cmd(&store, kind.as_deref(), coverage, json),
+        Command::Suggest {
+            store,
+            count,
+            beta,
+            max_similarity,
+            write_ids,
+            json,
+        } => cli::qc::suggest_cmd(
+            &store,
+            count,
+            beta,
+            max_similarity,
+            write_ids.as_deref(),
+            json,
+        ),
         Command::Forster {
             donor,
             acceptor,

@@ -2,7 +2,9 @@
 //! merge). This is the driver layer: it owns files, threads, progress and errors; the science it
 //! calls (`combine`, `chem`) is pure.
 
+pub mod calibration;
 pub mod error;
+pub mod ingest;
 pub mod merge;
 pub mod runner;
 pub mod store;
