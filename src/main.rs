@@ -492,6 +492,7 @@ fn run(
     match campaign::run(&wf, &RunOptions { shard, progress }) {
         Ok(s) if !wf.stages.iter().any(|x| x == "enumerate") => {
             print_estimate_summary(&s);
+            print_later_stages(&s);
             ExitCode::SUCCESS
         }
         Ok(s) => {
@@ -538,9 +539,91 @@ fn run(
                 s.store_tuples,
                 s.store_tuples.saturating_sub(s.store_candidates)
             );
+            print_later_stages(&s);
             ExitCode::SUCCESS
         }
         Err(e) => fail(e),
+    }
+}
+
+fn print_later_stages(s: &campaign::RunSummary) {
+    if let Some(i) = &s.ingest {
+        eprintln!(
+            "ingest: {} file(s), {} state(s) stored; matched {}, ambiguous {}, conflict {}, unmatched {}; {} failed, {} skipped",
+            i.files.len(),
+            i.states_stored,
+            i.matched,
+            i.ambiguous,
+            i.conflict,
+            i.unmatched,
+            i.failed,
+            i.skipped
+        );
+        for f in i.files.iter().filter(|f| f.status == "failed") {
+            eprintln!(
+                "  failed: {}: {}",
+                f.path,
+                f.message.as_deref().unwrap_or("")
+            );
+        }
+    }
+    match &s.calibration {
+        Some(Ok(outcomes)) => {
+            for o in outcomes {
+                match (&o.calibration, &o.error) {
+                    (Some(c), _) => eprintln!(
+                        "calibrate {}: {} points; cross-validated MAE S1 {:.3} eV, ΔEST {:.3} eV, log10 f {:.2}; 90 % half-widths {:.3} / {:.3} / {:.2}; applied to {} candidates",
+                        o.kind,
+                        o.n_points,
+                        c.s1.cv.mae,
+                        c.delta_est.cv.mae,
+                        c.log10_f.cv.mae,
+                        c.s1.half_width,
+                        c.delta_est.half_width,
+                        c.log10_f.half_width,
+                        o.applied
+                    ),
+                    (None, Some(e)) => {
+                        eprintln!(
+                            "calibrate {}: {} points, not fitted: {e}",
+                            o.kind, o.n_points
+                        )
+                    }
+                    _ => {}
+                }
+            }
+        }
+        Some(Err(e)) => eprintln!("calibrate: skipped: {e}"),
+        None => {}
+    }
+    if let Some(sl) = &s.shortlist {
+        let kept = sl.ranking.order.len();
+        eprintln!(
+            "shortlist: {} ranked, {} passed the filters, {} picked ({:?})",
+            sl.rows.len(),
+            kept,
+            sl.picks.len(),
+            sl.stop
+        );
+        for (k, &i) in sl.picks.iter().enumerate() {
+            let r = &sl.ranking.rows[i];
+            eprintln!(
+                "  {}. {}  D = {:.3}  front {}  {}",
+                k + 1,
+                &sl.info[i].candidate_id[..12],
+                r.desirability.unwrap_or(0.0),
+                r.front.map_or(0, |f| f + 1),
+                sl.info[i].canonical_smiles
+            );
+        }
+        eprintln!(
+            "  Predictions are estimates, not safety data: before any synthesis consult the safety \
+             data sheets, your institution's chemical hygiene plan and local regulations, and work \
+             under qualified supervision."
+        );
+    }
+    for p in &s.report_files {
+        eprintln!("report: wrote {}", p.display());
     }
 }
 

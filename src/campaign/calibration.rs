@@ -18,7 +18,7 @@
 
 use std::collections::{BTreeMap, HashMap};
 
-use rusqlite::params;
+use rusqlite::{OptionalExtension, params};
 use serde::Serialize;
 
 use super::error::CampaignError;
@@ -304,19 +304,35 @@ fn store_and_apply(
         "families": [cal.s1.family, cal.delta_est.family, cal.log10_f.family],
         "half_widths": [cal.s1.half_width, cal.delta_est.half_width, cal.log10_f.half_width, cal.t1.half_width],
     });
-    tx.execute(
-        "INSERT INTO calibrations(kind, created_utc, n_points, model_json, report_json)
-         VALUES (?1, ?2, ?3, ?4, ?5)",
-        params![
-            cal.kind,
-            super::store::now_utc(),
-            cal.n_points as i64,
-            serde_json::to_string(cal).expect("serialisable"),
-            report.to_string()
-        ],
-    )
-    .map_err(CampaignError::sqlite(&spath))?;
-    let cal_id = tx.last_insert_rowid();
+    // The same fit again (same data, same settings) reuses its id: re-running a workflow does
+    // not pile up identical calibrations.
+    let model_json = serde_json::to_string(cal).expect("serialisable");
+    let existing: Option<i64> = tx
+        .query_row(
+            "SELECT calibration_id FROM calibrations WHERE kind = ?1 AND model_json = ?2",
+            params![cal.kind, model_json],
+            |r| r.get(0),
+        )
+        .optional()
+        .map_err(CampaignError::sqlite(&spath))?;
+    let cal_id = match existing {
+        Some(id) => id,
+        None => {
+            tx.execute(
+                "INSERT INTO calibrations(kind, created_utc, n_points, model_json, report_json)
+                 VALUES (?1, ?2, ?3, ?4, ?5)",
+                params![
+                    cal.kind,
+                    super::store::now_utc(),
+                    cal.n_points as i64,
+                    model_json,
+                    report.to_string()
+                ],
+            )
+            .map_err(CampaignError::sqlite(&spath))?;
+            tx.last_insert_rowid()
+        }
+    };
     let key = format!("{}:{cal_id}", cal.kind);
     {
         let mut ins = tx

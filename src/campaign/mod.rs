@@ -6,7 +6,9 @@ pub mod calibration;
 pub mod error;
 pub mod ingest;
 pub mod merge;
+pub mod report_stage;
 pub mod runner;
+pub mod shortlist;
 pub mod store;
 pub mod workflow;
 

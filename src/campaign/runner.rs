@@ -8,6 +8,7 @@
 //! flight, whatever the size of the library.
 
 use std::ops::ControlFlow;
+use std::path::PathBuf;
 use std::sync::mpsc::sync_channel;
 use std::time::{Duration, Instant};
 
@@ -126,6 +127,11 @@ pub struct RunSummary {
     pub store_candidates: u64,
     pub store_tuples: u64,
     pub elapsed_s: f64,
+    /// Later stages (not run on a shard: they need the whole store).
+    pub ingest: Option<super::ingest::IngestSummary>,
+    pub calibration: Option<Result<Vec<super::calibration::KindOutcome>, String>>,
+    pub shortlist: Option<super::shortlist::ShortlistOutcome>,
+    pub report_files: Vec<PathBuf>,
 }
 
 /// Parameters that define the enumeration's output: a change makes a new parameter set.
@@ -157,6 +163,57 @@ pub fn run(wf: &Workflow, opts: &RunOptions) -> Result<RunSummary, CampaignError
         let (c, t) = store.totals()?;
         summary.store_candidates = c;
         summary.store_tuples = t;
+    }
+    let listed = |name: &str| wf.stages.iter().any(|s| s == name);
+    if opts.shard.is_some()
+        && ["ingest", "calibrate", "shortlist", "report"]
+            .iter()
+            .any(|s| listed(s))
+    {
+        return Err(CampaignError::Other(
+            "ingest, calibrate, shortlist and report need the whole store: run them after              `merge`, without --shard"
+                .into(),
+        ));
+    }
+    if let (true, Some(ing)) = (listed("ingest"), &wf.ingest) {
+        let mut st = Store::open_existing(&wf.store)?;
+        summary.ingest = Some(super::ingest::ingest(
+            &mut st,
+            &ing.paths,
+            &super::ingest::IngestOptions {
+                kind: ing.kind,
+                conditions: ing.conditions.clone(),
+            },
+        )?);
+    }
+    if let (true, Some(cal)) = (listed("calibrate"), &wf.calibrate) {
+        let mut st = Store::open_existing(&wf.store)?;
+        summary.calibration = Some(
+            super::calibration::calibrate_store(&mut st, cal.kind.as_deref(), None, &cal.params)
+                .map_err(|e| e.to_string()),
+        );
+    }
+    if let (true, Some(sl)) = (listed("shortlist"), &wf.shortlist) {
+        let mut st = Store::open_existing(&wf.store)?;
+        let out = super::shortlist::shortlist(&mut st, &lib, sl)?;
+        if let (true, Some(rs)) = (listed("report"), &wf.report) {
+            let refs = match &rs.references {
+                Some(p) => super::report_stage::read_references(p)?,
+                None => Vec::new(),
+            };
+            let provenance = vec![
+                format!("lumisift {}", env!("CARGO_PKG_VERSION")),
+                format!("workflow {} ({})", wf.name, wf.path.display()),
+                format!("store {}", wf.store.display()),
+                format!(
+                    "canonicaliser v{}, estimate record v{ESTIMATE_RECORD_VERSION}",
+                    crate::chem::CANONICALISER_VERSION
+                ),
+            ];
+            let data = super::report_stage::report_data(&out, sl, rs, &refs, provenance)?;
+            summary.report_files = super::report_stage::write_report(&rs.out_dir, &data, &out)?;
+        }
+        summary.shortlist = Some(out);
     }
     Ok(summary)
 }
@@ -369,6 +426,7 @@ fn run_enumerate(
         store_candidates,
         store_tuples,
         elapsed_s: started.elapsed().as_secs_f64(),
+        ..RunSummary::default()
     })
 }
 
@@ -733,6 +791,10 @@ fn estimate_record(
         "singlets": states(&e.singlets),
         "triplets": states(&e.triplets),
         "angle_samples": e.angle_samples,
+        // Torsion energy scan of each link (θ/°, E/kJ mol⁻¹, Boltzmann weight): report curves.
+        "links": e.links,
+        // Equilibrium-twist heavy-atom coordinates (Å, 3 decimals, SMILES atom order).
+        "geometry": e.geometry.iter().map(|p| p.map(|c| (c * 1e3).round() / 1e3)).collect::<Vec<_>>(),
         // Per atom (molecule order, hydrogens implicit), 4 decimals: for structure drawings.
         "s1_hole_by_atom": e.s1_hole_by_atom.iter().map(|x| (x * 1e4).round() / 1e4).collect::<Vec<_>>(),
         "s1_electron_by_atom": e.s1_electron_by_atom.iter().map(|x| (x * 1e4).round() / 1e4).collect::<Vec<_>>(),

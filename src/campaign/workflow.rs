@@ -53,6 +53,38 @@
 //! [estimate.band]
 //! stokes_shift_ev = 0.25
 //! fwhm_ev = 0.40
+//!
+//! [ingest]                          # stage "ingest": QC outputs and results tables
+//! paths = ["qc-results"]            # files or folders (recursive), relative to this file
+//! kind = "vertical_absorption"      # what the program outputs' energies are
+//! # conditions = "gas phase"
+//!
+//! [calibrate]                       # stage "calibrate": per kind, applied to every estimate
+//! # kind = "vertical_absorption"    # default: every kind with matched results
+//! coverage = 0.9                    # prediction-interval coverage
+//!
+//! [shortlist]                       # stage "shortlist" (every key optional)
+//! use_calibration = true
+//! [shortlist.rank]
+//! p_min = 0.5                       # keep when P(pass all filters) ≥ this
+//! confidence = 0.9                  # pessimistic bounds for ordering
+//! [shortlist.rank.filters]
+//! delta_est_max_ev = 0.3
+//! f_min = 0.005
+//! colour_target = "bt2020-blue"     # or "x,y"
+//! colour_max_delta_uv = 0.08
+//! mw_max = 1000.0
+//! le3_minus_ct1_min_ev = -0.1
+//! exclude_not_converged = true
+//! [shortlist.diversity]
+//! n_pick = 10
+//! max_similarity = 0.6              # Tanimoto ceiling between picks
+//! max_per_fragment = 3
+//!
+//! [report]                          # stage "report"
+//! out_dir = "report"                # report.html, shortlist.csv/.json/.sdf
+//! title = "Blue search"
+//! # references = "known-emitters.csv"   # name,smiles[,measured_delta_est_ev,measured_pl_peak_nm]
 //! ```
 //!
 //! Unknown keys are rejected with the line where they stand.
@@ -75,6 +107,57 @@ struct RawWorkflow {
     estimate: Option<RawEstimate>,
     #[serde(default)]
     screen: Option<RawScreen>,
+    #[serde(default)]
+    ingest: Option<RawIngest>,
+    #[serde(default)]
+    calibrate: Option<RawCalibrate>,
+    #[serde(default)]
+    shortlist: Option<super::shortlist::ShortlistSettings>,
+    #[serde(default)]
+    report: Option<super::report_stage::ReportSettings>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawIngest {
+    paths: Vec<PathBuf>,
+    #[serde(default = "default_kind")]
+    kind: String,
+    #[serde(default)]
+    conditions: Option<String>,
+}
+
+fn default_kind() -> String {
+    "vertical_absorption".into()
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCalibrate {
+    #[serde(default)]
+    kind: Option<String>,
+    #[serde(default = "default_coverage")]
+    coverage: f64,
+}
+
+fn default_coverage() -> f64 {
+    0.9
+}
+
+/// Settings of the ingest stage, resolved (paths absolute).
+#[derive(Debug, Clone, PartialEq)]
+pub struct IngestStage {
+    pub paths: Vec<PathBuf>,
+    pub kind: crate::qc::table::ResultKind,
+    pub conditions: Option<String>,
+}
+
+/// Settings of the calibrate stage.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CalibrateStage {
+    /// Only this kind (default: every kind with matched results).
+    pub kind: Option<String>,
+    pub params: crate::calibrate::CalibrateParams,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -249,10 +332,23 @@ pub struct Workflow {
     pub enumerate: Option<EnumerateStage>,
     pub estimate: Option<EstimateStage>,
     pub screen: Option<ScreenStage>,
+    pub ingest: Option<IngestStage>,
+    pub calibrate: Option<CalibrateStage>,
+    pub shortlist: Option<super::shortlist::ShortlistSettings>,
+    pub report: Option<super::report_stage::ReportSettings>,
 }
 
-/// Stages this version runs ("screen" selects what "enumerate" builds).
-pub const KNOWN_STAGES: &[&str] = &["screen", "enumerate", "estimate"];
+/// Stages this version runs, in the order they run ("screen" selects what "enumerate"
+/// builds; "report" needs "shortlist").
+pub const KNOWN_STAGES: &[&str] = &[
+    "screen",
+    "enumerate",
+    "estimate",
+    "ingest",
+    "calibrate",
+    "shortlist",
+    "report",
+];
 
 impl Workflow {
     pub fn load(path: &Path) -> Result<Workflow, CampaignError> {
@@ -464,6 +560,81 @@ impl Workflow {
         } else {
             None
         };
+        let ingest = match raw.ingest {
+            None if listed("ingest") => {
+                return Err(err(
+                    "stage 'ingest' is listed but there is no [ingest] table with paths".into(),
+                ));
+            }
+            None => None,
+            Some(r) => {
+                let kind = crate::qc::table::ResultKind::from_name(&r.kind).ok_or_else(|| {
+                    err(format!(
+                        "ingest.kind: unknown kind '{}' (known: {})",
+                        r.kind,
+                        crate::qc::table::ResultKind::ALL
+                            .iter()
+                            .map(|k| k.name())
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ))
+                })?;
+                if r.paths.is_empty() {
+                    return Err(err("ingest.paths: name at least one file or folder".into()));
+                }
+                Some(IngestStage {
+                    paths: r.paths.iter().map(|p| resolve(p)).collect(),
+                    kind,
+                    conditions: r.conditions,
+                })
+            }
+        };
+        let calibrate = if listed("calibrate") || raw.calibrate.is_some() {
+            let r = raw.calibrate.unwrap_or(RawCalibrate {
+                kind: None,
+                coverage: default_coverage(),
+            });
+            if !(r.coverage > 0.0 && r.coverage < 1.0) {
+                return Err(err(format!(
+                    "calibrate.coverage must lie in (0, 1), found {}",
+                    r.coverage
+                )));
+            }
+            Some(CalibrateStage {
+                kind: r.kind,
+                params: crate::calibrate::CalibrateParams {
+                    coverage: r.coverage,
+                    ..Default::default()
+                },
+            })
+        } else {
+            None
+        };
+        let shortlist = if listed("shortlist") || raw.shortlist.is_some() {
+            let sl = raw.shortlist.unwrap_or_default();
+            sl.rank
+                .validate()
+                .map_err(|m| err(format!("shortlist.rank: {m}")))?;
+            sl.diversity
+                .validate()
+                .map_err(|m| err(format!("shortlist.diversity: {m}")))?;
+            Some(sl)
+        } else {
+            None
+        };
+        let report = if listed("report") || raw.report.is_some() {
+            if listed("report") && !listed("shortlist") && shortlist.is_none() {
+                return Err(err(
+                    "stage 'report' draws the shortlist: list 'shortlist' too".into(),
+                ));
+            }
+            let mut r = raw.report.unwrap_or_default();
+            r.out_dir = resolve(&r.out_dir);
+            r.references = r.references.map(|p| resolve(&p));
+            Some(r)
+        } else {
+            None
+        };
         Ok(Workflow {
             path: path.to_path_buf(),
             text: text.to_string(),
@@ -475,6 +646,10 @@ impl Workflow {
             enumerate,
             estimate,
             screen,
+            ingest,
+            calibrate,
+            shortlist,
+            report,
         })
     }
 }
