@@ -729,3 +729,15 @@ n_states = 4
         .unwrap();
     assert_eq!(n, 8, "a second parameter set adds rows");
 }
+
+#[test]
+fn every_shipped_workflow_parses() {
+    // Each campaign definition under workflows/ loads: known stages, known keys, valid values.
+    for e in std::fs::read_dir(repo().join("workflows")).unwrap() {
+        let p = e.unwrap().path();
+        if p.extension().is_some_and(|x| x == "toml") {
+            lumisift::campaign::Workflow::load(&p)
+                .unwrap_or_else(|err| panic!("{}: {err}", p.display()));
+        }
+    }
+}
