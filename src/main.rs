@@ -81,8 +81,8 @@ enum Command {
         /// the job files.
         #[arg(long, value_name = "FILE")]
         template: Option<PathBuf>,
-        /// Candidates to prepare: a file with one candidate id or SMILES per line (`#`
-        /// comments), e.g. the output of `suggest --write-ids`.
+        /// Candidates to prepare: one per line, by candidate id or SMILES (`#` comments), e.g.
+        /// the output of `suggest --write-ids` or a report's shortlist.csv.
         #[arg(long, value_name = "FILE")]
         select: Option<PathBuf>,
     },
@@ -268,6 +268,28 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Rank the store's estimates (calibrated where possible), pick a diverse shortlist with
+    /// its coupling chemistry and cautions, and write report.html (self-contained) with
+    /// shortlist.csv, .json and .sdf.
+    Report {
+        store: PathBuf,
+        /// Take the [shortlist] and [report] settings and the fragment library from this
+        /// workflow (default: built-in defaults and --fragments).
+        #[arg(long)]
+        workflow: Option<PathBuf>,
+        /// Fragment library folders or files (for the synthesis plans) when no workflow is given.
+        #[arg(long, default_value = "fragments")]
+        fragments: Vec<PathBuf>,
+        /// Output folder (default: the workflow's, or `report/` beside the store).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Reference emitters CSV (name,smiles[,measured_delta_est_ev,measured_pl_peak_nm]).
+        #[arg(long)]
+        references: Option<PathBuf>,
+        /// Page title.
+        #[arg(long)]
+        title: Option<String>,
+    },
     /// Fragment library tools.
     Fragments {
         #[command(subcommand)]
@@ -325,6 +347,21 @@ fn main() -> ExitCode {
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
         } => fragments_check(&paths),
+        Command::Report {
+            store,
+            workflow,
+            fragments,
+            out,
+            references,
+            title,
+        } => cli::report::report_cmd(&cli::report::ReportArgs {
+            store,
+            workflow,
+            fragments,
+            out,
+            references,
+            title,
+        }),
         Command::Ingest {
             show: true,
             paths,
@@ -717,12 +754,26 @@ fn export_for_qc(store: &Path, dir: &Path, template: &Path, select: &Path) -> Ex
     let ext = template
         .extension()
         .map_or_else(|| "inp".to_string(), |e| e.to_string_lossy().into_owned());
+    // One candidate per line: a line's 32-hex-digit candidate id wherever it stands (so
+    // `suggest --write-ids` output and a shortlist.csv both work), else its first token as a
+    // SMILES; a CSV file's header line is skipped.
+    let is_csv = select
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
     let requested: Vec<String> = match std::fs::read_to_string(select) {
         Ok(t) => t
             .lines()
+            .skip(usize::from(is_csv))
             .map(str::trim)
             .filter(|l| !l.is_empty() && !l.starts_with('#'))
-            .map(|l| l.split_whitespace().next().unwrap_or_default().to_string())
+            .map(|l| {
+                let mut tokens = l.split(|c: char| c == ',' || c.is_whitespace());
+                l.split(|c: char| c == ',' || c.is_whitespace())
+                    .find(|t| t.len() == 32 && t.chars().all(|c| c.is_ascii_hexdigit()))
+                    .or_else(|| tokens.find(|t| !t.is_empty()))
+                    .unwrap_or_default()
+                    .to_string()
+            })
             .collect(),
         Err(e) => return fail(format!("{}: {e}", select.display())),
     };

@@ -2,5 +2,6 @@
 //! commands; `main.rs` parses and dispatches.
 
 pub mod qc;
+pub mod report;
 
 pub(crate) use super::fail;

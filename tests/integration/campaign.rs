@@ -531,6 +531,68 @@ fn the_demo_runs_every_stage_and_twice_gives_the_same_results() {
         .query_row("SELECT count(*) FROM calibrations", [], |r| r.get(0))
         .unwrap();
     assert_eq!(n, 1, "the same fit twice is stored once");
+    // The loop on the same store: `report` alone gives the run's shortlist; `suggest` picks
+    // uncomputed candidates; its ids and the shortlist CSV both drive `export --for-qc`.
+    let store = d1.join("demo.sqlite");
+    succeed([
+        std::ffi::OsStr::new("report"),
+        store.as_os_str(),
+        "--workflow".as_ref(),
+        w1.as_os_str(),
+        "--out".as_ref(),
+        d1.join("again").as_os_str(),
+    ]);
+    assert_eq!(
+        std::fs::read_to_string(d1.join("again/shortlist.csv")).unwrap(),
+        short1
+    );
+    let ids = d1.join("next.txt");
+    let out = succeed([
+        std::ffi::OsStr::new("suggest"),
+        store.as_os_str(),
+        "--count".as_ref(),
+        "3".as_ref(),
+        "--write-ids".as_ref(),
+        ids.as_os_str(),
+        "--json".as_ref(),
+    ]);
+    let picks: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let picks = picks.as_array().unwrap();
+    assert_eq!(picks.len(), 3);
+    let computed: Vec<String> = {
+        let mut st = c
+            .prepare("SELECT DISTINCT candidate_id FROM qc_states WHERE match_status = 'matched'")
+            .unwrap();
+        st.query_map([], |r| r.get(0))
+            .unwrap()
+            .map(Result::unwrap)
+            .collect()
+    };
+    assert_eq!(computed.len(), 16);
+    for p in picks {
+        assert!(!computed.contains(&p["candidate_id"].as_str().unwrap().to_string()));
+        assert_eq!(p["calibrated"], true);
+    }
+    let tpl = d1.join("job.inp");
+    std::fs::write(&tpl, "{{id}}\n{{natoms}}\n{{coords}}\n").unwrap();
+    for (sel, n) in [
+        (ids, 3),
+        (d1.join("report/shortlist.csv"), short1.lines().count() - 1),
+    ] {
+        let jobs = d1.join(format!("jobs-{n}"));
+        succeed([
+            std::ffi::OsStr::new("export"),
+            store.as_os_str(),
+            "--for-qc".as_ref(),
+            jobs.as_os_str(),
+            "--template".as_ref(),
+            tpl.as_os_str(),
+            "--select".as_ref(),
+            sel.as_os_str(),
+        ]);
+        let manifest = std::fs::read_to_string(jobs.join("manifest.csv")).unwrap();
+        assert_eq!(manifest.lines().count(), n + 1, "{manifest}");
+    }
 }
 
 #[test]
