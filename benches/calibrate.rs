@@ -77,7 +77,7 @@ fn bench(c: &mut Criterion) {
                 let r = cal
                     .predict(black_box(&k.raw), &k.descriptors, &k.groups)
                     .unwrap();
-                acc += r.t1_ev.value + r.f.hi;
+                acc += r.t1_ev.unwrap().value + r.f.unwrap().hi;
             }
             black_box(acc)
         })

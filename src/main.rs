@@ -608,18 +608,25 @@ fn print_later_stages(s: &campaign::RunSummary) {
         Some(Ok(outcomes)) => {
             for o in outcomes {
                 match (&o.calibration, &o.error) {
-                    (Some(c), _) => eprintln!(
-                        "calibrate {}: {} points; cross-validated MAE S1 {:.3} eV, ΔEST {:.3} eV, log10 f {:.2}; 90 % half-widths {:.3} / {:.3} / {:.2}; applied to {} candidates",
-                        o.kind,
-                        o.n_points,
-                        c.s1.cv.mae,
-                        c.delta_est.cv.mae,
-                        c.log10_f.cv.mae,
-                        c.s1.half_width,
-                        c.delta_est.half_width,
-                        c.log10_f.half_width,
-                        o.applied
-                    ),
+                    (Some(c), _) => {
+                        let part = |name: &str, t: &Option<lumisift::calibrate::TargetFit>| {
+                            t.as_ref().map_or(format!("{name} not fitted"), |t| {
+                                format!("{name} MAE {:.3} (±{:.3})", t.cv.mae, t.half_width)
+                            })
+                        };
+                        eprintln!(
+                            "calibrate {}: {} points; cross-validated {}, {}, {}; applied to {} candidates",
+                            o.kind,
+                            o.n_points,
+                            part("S1/eV", &c.s1),
+                            part("ΔEST/eV", &c.delta_est),
+                            part("log10 f", &c.log10_f),
+                            o.applied
+                        );
+                        for sk in &c.skipped {
+                            eprintln!("  skipped: {sk}");
+                        }
+                    }
                     (None, Some(e)) => {
                         eprintln!(
                             "calibrate {}: {} points, not fitted: {e}",

@@ -401,10 +401,14 @@ pub struct Calibration {
     /// Sorted, distinct fragment keys seen in the calibration data.
     pub vocabulary: Vec<String>,
     pub domain: Domain,
-    pub s1: TargetFit,
-    pub delta_est: TargetFit,
-    pub log10_f: TargetFit,
-    pub t1: DerivedFit,
+    /// Each target's fit; `None` when its data were too few (see `skipped`).
+    pub s1: Option<TargetFit>,
+    pub delta_est: Option<TargetFit>,
+    pub log10_f: Option<TargetFit>,
+    /// T1 = S1 − ΔEST, when both are fitted.
+    pub t1: Option<DerivedFit>,
+    /// Targets left unfitted and why (e.g. measured data without oscillator strengths).
+    pub skipped: Vec<String>,
 }
 
 /// A calibrated value with its interval.
@@ -415,14 +419,16 @@ pub struct Interval {
     pub hi: f64,
 }
 
-/// Calibrated S1, ΔEST, T1 (= S1 − ΔEST exactly) and f of one candidate.
+/// Calibrated S1, ΔEST, T1 (= S1 − ΔEST exactly) and f of one candidate; `None` for a target
+/// the calibration could not fit (the raw value stands, without an interval).
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Calibrated {
-    pub s1_ev: Interval,
-    pub delta_est_ev: Interval,
-    pub t1_ev: Interval,
+    pub s1_ev: Option<Interval>,
+    pub delta_est_ev: Option<Interval>,
+    /// Present when both S1 and ΔEST are calibrated.
+    pub t1_ev: Option<Interval>,
     /// Oscillator strength (value and bounds clamped at 0).
-    pub f: Interval,
+    pub f: Option<Interval>,
     /// Outside the applicability domain (see the module docs): flagged, not widened.
     pub out_of_domain: bool,
 }
@@ -447,8 +453,10 @@ pub fn fit_each_kind(
 
 /// Fit a calibration on points of a single kind.
 ///
-/// Every target (S1, ΔEST, log10 f) needs at least [`MIN_POINTS`] observed points spanning
-/// at least [`MIN_GROUPS`] usable fragment keys; points of more than one `kind` are refused.
+/// A target (S1, ΔEST, log10 f) is fitted when it has at least [`MIN_POINTS`] observed points
+/// spanning at least [`MIN_GROUPS`] usable fragment keys; the others are skipped with their
+/// reason (`Calibration::skipped`), and no target fitted is an error. Points of more than one
+/// `kind` are refused.
 ///
 /// Cost: O(F² · L · n · p²) for F folds, L penalties, n points and p ridge columns (nested CV);
 /// about 70 ms for 120 points (`cargo bench --bench calibrate`).
@@ -499,39 +507,74 @@ pub fn fit(points: &[CalPoint], params: &CalibrateParams) -> Result<Calibration,
     vocabulary.dedup();
     let domain = domain_of(points, nd, params.domain_margin);
 
-    let mut fits = Vec::with_capacity(3);
+    // Each target on its own; a target with too little data is skipped with its reason (the
+    // others still calibrate), any other failure stops the fit. Nothing fitted: the first
+    // reason is the error.
+    let mut skipped = Vec::new();
+    let mut first_err = None;
+    let mut outcomes = Vec::with_capacity(3);
     for t in Target::ALL {
-        fits.push(fit_target(points, t, &vocabulary, params)?);
+        match fit_target(points, t, &vocabulary, params) {
+            Ok(o) => outcomes.push(Some(o)),
+            Err(
+                e @ (CalibrateError::TooFewPoints { .. }
+                | CalibrateError::TooFewGroups { .. }
+                | CalibrateError::TooFewForCoverage { .. }),
+            ) => {
+                skipped.push(e.to_string());
+                first_err.get_or_insert(e);
+                outcomes.push(None);
+            }
+            Err(e) => return Err(e),
+        }
     }
-    let mut fits = fits.into_iter();
+    if outcomes.iter().all(Option::is_none) {
+        return Err(first_err.expect("a reason per target"));
+    }
+    let mut outcomes = outcomes.into_iter();
     let (s1, dest, lf) = (
-        fits.next().expect("three targets"),
-        fits.next().expect("three targets"),
-        fits.next().expect("three targets"),
+        outcomes.next().expect("three targets"),
+        outcomes.next().expect("three targets"),
+        outcomes.next().expect("three targets"),
     );
 
     // T1 = S1 − ΔEST: out-of-fold residual of the difference where both are observed.
-    let mut obs_t1 = Vec::new();
-    let mut pred_t1 = Vec::new();
-    for (i, p) in points.iter().enumerate() {
-        if let (Some(a), Some(b)) = (p.observed.s1_ev, p.observed.delta_est_ev) {
-            let (pa, pb) = (s1.oof[&i], dest.oof[&i]);
-            obs_t1.push(a - b);
-            pred_t1.push(pa - pb);
+    let t1 = match (&s1, &dest) {
+        (Some(s1), Some(dest)) => {
+            let mut obs_t1 = Vec::new();
+            let mut pred_t1 = Vec::new();
+            for (i, p) in points.iter().enumerate() {
+                if let (Some(a), Some(b), Some(pa), Some(pb)) = (
+                    p.observed.s1_ev,
+                    p.observed.delta_est_ev,
+                    s1.oof.get(&i),
+                    dest.oof.get(&i),
+                ) {
+                    obs_t1.push(a - b);
+                    pred_t1.push(pa - pb);
+                }
+            }
+            let res: Vec<f64> = obs_t1.iter().zip(&pred_t1).map(|(o, p)| o - p).collect();
+            match conformal::half_width(&res, params.coverage) {
+                Some(h) => Some(DerivedFit {
+                    half_width: h,
+                    cv: CvMetrics::of(&obs_t1, &pred_t1),
+                }),
+                None => {
+                    skipped.push(
+                        CalibrateError::TooFewForCoverage {
+                            target: "t1_ev".into(),
+                            coverage: params.coverage,
+                            n: res.len(),
+                            needed: conformal::needed(params.coverage),
+                        }
+                        .to_string(),
+                    );
+                    None
+                }
+            }
         }
-    }
-    let res: Vec<f64> = obs_t1.iter().zip(&pred_t1).map(|(o, p)| o - p).collect();
-    let t1_half = conformal::half_width(&res, params.coverage).ok_or_else(|| {
-        CalibrateError::TooFewForCoverage {
-            target: "t1_ev".into(),
-            coverage: params.coverage,
-            n: res.len(),
-            needed: conformal::needed(params.coverage),
-        }
-    })?;
-    let t1 = DerivedFit {
-        half_width: t1_half,
-        cv: CvMetrics::of(&obs_t1, &pred_t1),
+        _ => None,
     };
 
     Ok(Calibration {
@@ -542,10 +585,11 @@ pub fn fit(points: &[CalPoint], params: &CalibrateParams) -> Result<Calibration,
         n_descriptors: nd,
         vocabulary,
         domain,
-        s1: s1.fit,
-        delta_est: dest.fit,
-        log10_f: lf.fit,
+        s1: s1.map(|o| o.fit),
+        delta_est: dest.map(|o| o.fit),
+        log10_f: lf.map(|o| o.fit),
         t1,
+        skipped,
     })
 }
 
@@ -785,42 +829,50 @@ impl Calibration {
                 ood = true;
             }
         }
-        let band = |fit: &TargetFit, raw: f64| {
-            let v = fit.model.eval(raw, descriptors, keys);
-            Interval {
-                value: v,
-                lo: v - fit.half_width,
-                hi: v + fit.half_width,
-            }
+        let band = |fit: &Option<TargetFit>, raw: f64| {
+            fit.as_ref().map(|fit| {
+                let v = fit.model.eval(raw, descriptors, keys);
+                Interval {
+                    value: v,
+                    lo: v - fit.half_width,
+                    hi: v + fit.half_width,
+                }
+            })
         };
         let s1 = band(&self.s1, raw.s1_ev);
         let dest = band(&self.delta_est, raw.delta_est_ev);
         let lf = band(&self.log10_f, raw.log10_f);
-        let t1v = s1.value - dest.value;
+        let t1 = match (s1, dest, &self.t1) {
+            (Some(s1), Some(dest), Some(t1)) => {
+                let v = s1.value - dest.value;
+                Some(Interval {
+                    value: v,
+                    lo: v - t1.half_width,
+                    hi: v + t1.half_width,
+                })
+            }
+            _ => None,
+        };
         let to_f = |y: f64| (10f64.powf(y) - self.f_floor).max(0.0);
         Ok(Calibrated {
             s1_ev: s1,
             delta_est_ev: dest,
-            t1_ev: Interval {
-                value: t1v,
-                lo: t1v - self.t1.half_width,
-                hi: t1v + self.t1.half_width,
-            },
-            f: Interval {
+            t1_ev: t1,
+            f: lf.map(|lf| Interval {
                 value: to_f(lf.value),
                 lo: to_f(lf.lo),
                 hi: to_f(lf.hi),
-            },
+            }),
             out_of_domain: ood,
         })
     }
 
     /// The fitted record of one target.
-    pub fn target(&self, t: Target) -> &TargetFit {
+    pub fn target(&self, t: Target) -> Option<&TargetFit> {
         match t {
-            Target::S1 => &self.s1,
-            Target::DeltaEst => &self.delta_est,
-            Target::Log10F => &self.log10_f,
+            Target::S1 => self.s1.as_ref(),
+            Target::DeltaEst => self.delta_est.as_ref(),
+            Target::Log10F => self.log10_f.as_ref(),
         }
     }
 }

@@ -298,11 +298,17 @@ fn store_and_apply(
         .connection_mut()
         .transaction()
         .map_err(CampaignError::sqlite(&spath))?;
+    let target = |t: &Option<crate::calibrate::TargetFit>| {
+        t.as_ref().map(
+            |t| serde_json::json!({"cv": t.cv, "family": t.family, "half_width": t.half_width}),
+        )
+    };
     let report = serde_json::json!({
         "estimate_param_hash": estimate_hash,
-        "s1": cal.s1.cv, "delta_est": cal.delta_est.cv, "log10_f": cal.log10_f.cv, "t1": cal.t1.cv,
-        "families": [cal.s1.family, cal.delta_est.family, cal.log10_f.family],
-        "half_widths": [cal.s1.half_width, cal.delta_est.half_width, cal.log10_f.half_width, cal.t1.half_width],
+        "s1": target(&cal.s1), "delta_est": target(&cal.delta_est),
+        "log10_f": target(&cal.log10_f),
+        "t1": cal.t1.as_ref().map(|t| serde_json::json!({"cv": t.cv, "half_width": t.half_width})),
+        "skipped": cal.skipped,
     });
     // The same fit again (same data, same settings) reuses its id: re-running a workflow does
     // not pile up identical calibrations.
@@ -363,7 +369,9 @@ fn calibrated_record(
     v: &EstimateView,
     c: &Calibrated,
 ) -> String {
-    let iv = |i: &crate::calibrate::Interval| serde_json::json!([i.value, i.lo, i.hi]);
+    let iv = |i: &Option<crate::calibrate::Interval>| {
+        i.map(|i| serde_json::json!([i.value, i.lo, i.hi]))
+    };
     serde_json::json!({
         "calibration_id": cal_id,
         "kind": kind,
@@ -470,32 +478,23 @@ pub fn suggest_batch(
             computed_fps.push(fp);
             continue;
         }
-        let (s1, dest, f, sd, sf, calibrated, ood) = match cal.get(&v.candidate_id) {
-            Some(c) => {
-                let t = |k: &str, i: usize| c[k][i].as_f64().unwrap_or(f64::NAN);
-                let hw_d = (t("delta_est_ev", 2) - t("delta_est_ev", 1)) / 2.0;
-                let lf = |x: f64| (x.max(0.0) + crate::calibrate::F_FLOOR).log10();
-                let hw_f = (lf(t("osc_strength", 2)) - lf(t("osc_strength", 1))) / 2.0;
-                (
-                    t("s1_ev", 0),
-                    t("delta_est_ev", 0),
-                    t("osc_strength", 0),
-                    hw_d / Z90,
-                    hw_f / Z90,
-                    true,
-                    c["out_of_domain"].as_bool().unwrap_or(false),
-                )
-            }
-            None => (
-                v.s1_ev,
-                v.delta_est_ev,
-                v.f,
-                PRIOR_SIGMA_DEST_EV,
-                PRIOR_SIGMA_LOG10_F,
-                false,
-                false,
-            ),
+        // Per target: the calibrated value and σ where the calibration has them, else the raw
+        // value and the prior σ.
+        let c = cal.get(&v.candidate_id);
+        let iv = |k: &str| -> Option<(f64, f64, f64)> {
+            let a = &c?[k];
+            Some((a[0].as_f64()?, a[1].as_f64()?, a[2].as_f64()?))
         };
+        let lf = |x: f64| (x.max(0.0) + crate::calibrate::F_FLOOR).log10();
+        let s1 = iv("s1_ev").map_or(v.s1_ev, |t| t.0);
+        let (dest, sd) = iv("delta_est_ev").map_or((v.delta_est_ev, PRIOR_SIGMA_DEST_EV), |t| {
+            (t.0, (t.2 - t.1) / 2.0 / Z90)
+        });
+        let (f, sf) = iv("osc_strength").map_or((v.f, PRIOR_SIGMA_LOG10_F), |t| {
+            (t.0, (lf(t.2) - lf(t.1)) / 2.0 / Z90)
+        });
+        let calibrated = c.is_some();
+        let ood = c.is_some_and(|c| c["out_of_domain"].as_bool().unwrap_or(false));
         let mu = crate::photophysics::log10_tadf_rate(
             s1,
             dest,

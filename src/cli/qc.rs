@@ -303,32 +303,39 @@ pub fn calibrate_cmd(store: &Path, kind: Option<&str>, coverage: f64, json: bool
                         "   {:<10} {:<11} {:>8} {:>8} {:>6} {:>6} {:>9}",
                         "target", "model", "MAE", "RMSE", "R²", "ρ", "±(90 %)"
                     );
+                    let row = |name: &str,
+                               model: String,
+                               cv: &lumisift::calibrate::CvMetrics,
+                               hw: f64| {
+                        println!(
+                            "   {:<10} {:<11} {:>8.3} {:>8.3} {:>6} {:>6} {:>9.3}",
+                            name,
+                            model,
+                            cv.mae,
+                            cv.rmse,
+                            cv.r2.map_or("–".into(), |r| format!("{r:.2}")),
+                            cv.spearman.map_or("–".into(), |r| format!("{r:.2}")),
+                            hw
+                        )
+                    };
                     for (name, fit) in [
                         ("S1/eV", &c.s1),
                         ("ΔEST/eV", &c.delta_est),
                         ("log10 f", &c.log10_f),
                     ] {
-                        println!(
-                            "   {:<10} {:<11} {:>8.3} {:>8.3} {:>6} {:>6} {:>9.3}",
-                            name,
-                            format!("{:?}", fit.family),
-                            fit.cv.mae,
-                            fit.cv.rmse,
-                            fit.cv.r2.map_or("–".into(), |r| format!("{r:.2}")),
-                            fit.cv.spearman.map_or("–".into(), |r| format!("{r:.2}")),
-                            fit.half_width
-                        );
+                        match fit {
+                            Some(fit) => {
+                                row(name, format!("{:?}", fit.family), &fit.cv, fit.half_width)
+                            }
+                            None => println!("   {name:<10} not fitted (raw values stand)"),
+                        }
                     }
-                    println!(
-                        "   {:<10} {:<11} {:>8.3} {:>8.3} {:>6} {:>6} {:>9.3}",
-                        "T1/eV",
-                        "S1 − ΔEST",
-                        c.t1.cv.mae,
-                        c.t1.cv.rmse,
-                        c.t1.cv.r2.map_or("–".into(), |r| format!("{r:.2}")),
-                        c.t1.cv.spearman.map_or("–".into(), |r| format!("{r:.2}")),
-                        c.t1.half_width
-                    );
+                    if let Some(t1) = &c.t1 {
+                        row("T1/eV", "S1 − ΔEST".into(), &t1.cv, t1.half_width);
+                    }
+                    for sk in &c.skipped {
+                        println!("   skipped: {sk}");
+                    }
                     println!("   (errors from cross-validation with folds grouped by fragment)");
                 }
                 (None, Some(e)) => println!("{}: {} points, not fitted: {e}", o.kind, o.n_points),

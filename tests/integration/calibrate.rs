@@ -119,7 +119,7 @@ fn calibrate_recovers_slope_and_intercept_within_three_standard_errors() {
 
     // The full calibration: whichever family wins, its raw coefficient is the slope.
     let cal = fit(&pts, &CalibrateParams::default()).unwrap();
-    match &cal.s1.model {
+    match &cal.s1.as_ref().unwrap().model {
         Model::RobustLine { intercept, slope } => {
             assert!((slope - S1_MAP.1).abs() < 3.0 * se_b);
             assert!((intercept - S1_MAP.0).abs() < 3.0 * se_a);
@@ -127,7 +127,7 @@ fn calibrate_recovers_slope_and_intercept_within_three_standard_errors() {
         Model::Ridge { raw_coef, .. } => assert!((raw_coef - S1_MAP.1).abs() < 3.0 * se_b),
     }
     // Cross-validated errors near the noise level (MAE of a normal = σ·√(2/π)).
-    let cv = cal.s1.cv;
+    let cv = cal.s1.as_ref().unwrap().cv;
     assert_eq!(cv.n, 300);
     assert!(cv.rmse > 0.04 && cv.rmse < 0.06, "rmse {}", cv.rmse);
     assert!((cv.mae - 0.05 * (2.0 / std::f64::consts::PI).sqrt()).abs() < 0.01);
@@ -239,14 +239,14 @@ fn calibrate_conformal_coverage_on_held_out_points() {
             let o = p.observed;
             let t1 = o.s1_ev.unwrap() - o.delta_est_ev.unwrap();
             let inside = |v: f64, lo: f64, hi: f64| (lo..=hi).contains(&v);
-            hits[0] += inside(o.s1_ev.unwrap(), c.s1_ev.lo, c.s1_ev.hi) as usize;
+            hits[0] += inside(o.s1_ev.unwrap(), c.s1_ev.unwrap().lo, c.s1_ev.unwrap().hi) as usize;
             hits[1] += inside(
                 o.delta_est_ev.unwrap(),
-                c.delta_est_ev.lo,
-                c.delta_est_ev.hi,
+                c.delta_est_ev.unwrap().lo,
+                c.delta_est_ev.unwrap().hi,
             ) as usize;
-            hits[2] += inside(t1, c.t1_ev.lo, c.t1_ev.hi) as usize;
-            hits[3] += inside(o.f.unwrap(), c.f.lo, c.f.hi) as usize;
+            hits[2] += inside(t1, c.t1_ev.unwrap().lo, c.t1_ev.unwrap().hi) as usize;
+            hits[3] += inside(o.f.unwrap(), c.f.unwrap().lo, c.f.unwrap().hi) as usize;
         }
         for (name, h) in ["s1", "delta_est", "t1", "f"].iter().zip(hits) {
             let cov = h as f64 / test.len() as f64;
@@ -288,20 +288,39 @@ fn calibrate_refuses_too_few_points_or_groups() {
     );
     assert!(e.to_string().contains("grouped cross-validation"));
 
-    // f missing on most points: the f target is the one refused.
+    // f missing on most points (measured data often has none): S1 and ΔEST are fitted, the f
+    // target is skipped with its reason, and its prediction is absent (raw f stands).
     let mut pts = synth(30, 3, 0.05, "tddft");
     for p in pts.iter_mut().skip(5) {
         p.observed.f = None;
     }
-    let e = fit(&pts, &CalibrateParams::default()).unwrap_err();
+    let cal = fit(&pts, &CalibrateParams::default()).unwrap();
+    assert!(cal.s1.is_some() && cal.delta_est.is_some() && cal.t1.is_some());
+    assert!(cal.log10_f.is_none());
     assert_eq!(
-        e,
-        CalibrateError::TooFewPoints {
-            target: Target::Log10F,
-            n: 5,
-            min: 10
-        }
+        cal.skipped,
+        vec![
+            CalibrateError::TooFewPoints {
+                target: Target::Log10F,
+                n: 5,
+                min: 10
+            }
+            .to_string()
+        ]
     );
+    let c = cal
+        .predict(&pts[0].raw, &pts[0].descriptors, &pts[0].groups)
+        .unwrap();
+    assert!(c.s1_ev.is_some() && c.t1_ev.is_some() && c.f.is_none());
+    // Only S1 observed (a measured emission peak per molecule): S1 alone is calibrated.
+    let mut pts = synth(30, 3, 0.05, "measured");
+    for p in pts.iter_mut() {
+        p.observed.f = None;
+        p.observed.delta_est_ev = None;
+    }
+    let cal = fit(&pts, &CalibrateParams::default()).unwrap();
+    assert!(cal.s1.is_some() && cal.delta_est.is_none() && cal.t1.is_none());
+    assert_eq!(cal.skipped.len(), 2);
 }
 
 #[test]
@@ -329,9 +348,19 @@ fn calibrate_t1_is_s1_minus_delta_est_exactly() {
     for _ in 0..200 {
         let raw = RawValues::new(g.range(2.0, 3.5), g.range(0.0, 0.8), g.range(0.0, 0.3));
         let c = cal.predict(&raw, &[0.5, 0.0], &["D1", "A2"]).unwrap();
-        assert_eq!(c.t1_ev.value, c.s1_ev.value - c.delta_est_ev.value);
-        assert!(c.t1_ev.lo <= c.t1_ev.value && c.t1_ev.value <= c.t1_ev.hi);
-        assert!(c.f.lo >= 0.0 && c.f.lo <= c.f.value && c.f.value <= c.f.hi);
+        assert_eq!(
+            c.t1_ev.unwrap().value,
+            c.s1_ev.unwrap().value - c.delta_est_ev.unwrap().value
+        );
+        assert!(
+            c.t1_ev.unwrap().lo <= c.t1_ev.unwrap().value
+                && c.t1_ev.unwrap().value <= c.t1_ev.unwrap().hi
+        );
+        assert!(
+            c.f.unwrap().lo >= 0.0
+                && c.f.unwrap().lo <= c.f.unwrap().value
+                && c.f.unwrap().value <= c.f.unwrap().hi
+        );
     }
 }
 
@@ -352,8 +381,8 @@ fn calibrate_out_of_domain_flag() {
     assert!(unseen.out_of_domain);
     // Flagged, not widened: the same half-width.
     assert_eq!(
-        unseen.s1_ev.hi - unseen.s1_ev.value,
-        inside.s1_ev.hi - inside.s1_ev.value
+        unseen.s1_ev.unwrap().hi - unseen.s1_ev.unwrap().value,
+        inside.s1_ev.unwrap().hi - inside.s1_ev.unwrap().value
     );
     // Descriptor 0 was drawn in [0, 1): 1.05 is inside the widened range, 1.5 is not.
     assert!(
@@ -402,8 +431,14 @@ fn calibrate_fragment_effects_choose_ridge() {
         *p.observed.s1_ev.as_mut().unwrap() += 0.15 * d;
     }
     let cal = fit(&pts, &CalibrateParams::default()).unwrap();
-    assert_eq!(cal.s1.family, lumisift::calibrate::Family::Ridge);
-    assert!(cal.s1.ridge_cv_mse.unwrap() < cal.s1.robust_cv_mse.unwrap());
+    assert_eq!(
+        cal.s1.as_ref().unwrap().family,
+        lumisift::calibrate::Family::Ridge
+    );
+    assert!(
+        cal.s1.as_ref().unwrap().ridge_cv_mse.unwrap()
+            < cal.s1.as_ref().unwrap().robust_cv_mse.unwrap()
+    );
 }
 
 #[test]
