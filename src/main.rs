@@ -271,25 +271,7 @@ enum Command {
     /// Rank the store's estimates (calibrated where possible), pick a diverse shortlist with
     /// its coupling chemistry and cautions, and write report.html (self-contained) with
     /// shortlist.csv, .json and .sdf.
-    Report {
-        store: PathBuf,
-        /// Take the [shortlist] and [report] settings and the fragment library from this
-        /// workflow (default: built-in defaults and --fragments).
-        #[arg(long)]
-        workflow: Option<PathBuf>,
-        /// Fragment library folders or files (for the synthesis plans) when no workflow is given.
-        #[arg(long, default_value = "fragments")]
-        fragments: Vec<PathBuf>,
-        /// Output folder (default: the workflow's, or `report/` beside the store).
-        #[arg(long)]
-        out: Option<PathBuf>,
-        /// Reference emitters CSV (name,smiles[,measured_delta_est_ev,measured_pl_peak_nm]).
-        #[arg(long)]
-        references: Option<PathBuf>,
-        /// Page title.
-        #[arg(long)]
-        title: Option<String>,
-    },
+    Report(cli::report::ReportArgs),
     /// Fragment library tools.
     Fragments {
         #[command(subcommand)]
@@ -347,21 +329,7 @@ fn main() -> ExitCode {
         Command::Fragments {
             command: FragmentsCommand::Check { paths },
         } => fragments_check(&paths),
-        Command::Report {
-            store,
-            workflow,
-            fragments,
-            out,
-            references,
-            title,
-        } => cli::report::report_cmd(&cli::report::ReportArgs {
-            store,
-            workflow,
-            fragments,
-            out,
-            references,
-            title,
-        }),
+        Command::Report(args) => cli::report::report_cmd(&args),
         Command::Ingest {
             show: true,
             paths,

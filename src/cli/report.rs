@@ -13,12 +13,24 @@ use lumisift::campaign::store::Store;
 use super::fail;
 
 /// Options of `report`.
+#[derive(clap::Args)]
 pub struct ReportArgs {
     pub store: PathBuf,
+    /// Take the [shortlist] and [report] settings and the fragment library from this
+    /// workflow (default: built-in defaults and --fragments).
+    #[arg(long)]
     pub workflow: Option<PathBuf>,
+    /// Fragment library folders or files (for the synthesis plans) when no workflow is given.
+    #[arg(long, default_value = "fragments")]
     pub fragments: Vec<PathBuf>,
+    /// Output folder (default: the workflow's, or `report/` beside the store).
+    #[arg(long)]
     pub out: Option<PathBuf>,
+    /// Reference emitters CSV (name,smiles[,measured_delta_est_ev,measured_pl_peak_nm]).
+    #[arg(long)]
     pub references: Option<PathBuf>,
+    /// Page title.
+    #[arg(long)]
     pub title: Option<String>,
 }
 

@@ -23,6 +23,16 @@ pub struct StateCharacter {
     pub electron: Vec<f64>,
 }
 
+/// The one-particle transition density in the site basis, T = C_occ X C_virᵀ with X the
+/// amplitudes as an occupied × virtual matrix (row-major).
+fn transition_density(scf: &ScfResult, cis: &CisResult, state: &ExcitedState) -> DMatrix<f64> {
+    let (no, nv) = (cis.occ.len(), cis.vir.len());
+    let co = scf.coeffs.select_columns(&cis.occ);
+    let cv = scf.coeffs.select_columns(&cis.vir);
+    let xm = DMatrix::from_row_slice(no, nv, state.amplitudes.as_slice());
+    co * xm * cv.transpose()
+}
+
 /// Ω analysis of `state`; `site_unit[s]` is the unit of π site s, `n_units` their count.
 pub fn characterise(
     scf: &ScfResult,
@@ -32,12 +42,7 @@ pub fn characterise(
     n_units: usize,
 ) -> StateCharacter {
     let n = scf.coeffs.nrows();
-    let (no, nv) = (cis.occ.len(), cis.vir.len());
-    // T = C_occ X C_virᵀ with X the amplitudes as an occupied × virtual matrix (row-major).
-    let co = scf.coeffs.select_columns(&cis.occ);
-    let cv = scf.coeffs.select_columns(&cis.vir);
-    let xm = DMatrix::from_row_slice(no, nv, state.amplitudes.as_slice());
-    let t = co * xm * cv.transpose();
+    let t = transition_density(scf, cis, state);
     debug_assert_eq!(t.shape(), (n, n));
     let mut omega = vec![vec![0.0; n_units]; n_units];
     for mu in 0..n {
@@ -83,11 +88,7 @@ pub fn site_populations(
     state: &ExcitedState,
 ) -> (Vec<f64>, Vec<f64>) {
     let n = scf.coeffs.nrows();
-    let (no, nv) = (cis.occ.len(), cis.vir.len());
-    let co = scf.coeffs.select_columns(&cis.occ);
-    let cv = scf.coeffs.select_columns(&cis.vir);
-    let xm = DMatrix::from_row_slice(no, nv, state.amplitudes.as_slice());
-    let t = co * xm * cv.transpose();
+    let t = transition_density(scf, cis, state);
     let mut hole = vec![0.0; n];
     let mut electron = vec![0.0; n];
     for mu in 0..n {
