@@ -1,12 +1,15 @@
 //! Fit the fast fragment tier to π-tier results and report how it does on held-out tuples.
 //!
 //!     cargo run --release --example fit_fast_tier -- [--write]
+//!     cargo run --release --example fit_fast_tier -- --write-pairs [--fresh]
 //!
 //! Reads `tests/fixtures/fast_tier/pi_tier.csv`, splits it by candidate id (see
 //! `tests/support/fasttier.rs`), fits by ridge regression on the fitting rows and prints
 //! Spearman ρ, MAE and the cascade's retention of the π tier's top 100 (by log10 k_TADF) on
 //! the test rows. With `--write` it writes `data/fast-tier.toml` (the integration test
-//! `fast_tier` then checks the file against the same data).
+//! `fast_tier` then checks the file against the same data). With `--write-pairs` it estimates
+//! every donor–acceptor dimer of the shipped library with the π tier instead (minutes) and
+//! writes the pair cache `data/fast-pairs.csv` (`src/fast/pairs.rs`).
 
 #[path = "../tests/support/fasttier.rs"]
 mod fasttier;
@@ -15,7 +18,53 @@ use lumisift::fast::fit::{evaluate, fit_model};
 
 const ALPHA: f64 = 1.0;
 
+/// Estimate every dimer of the shipped library and write `data/fast-pairs.csv`.
+fn write_pairs() {
+    use lumisift::fast::pairs::{PairCache, dimer_jobs, estimate_dimer};
+    use lumisift::pi::estimate::EstimateParams;
+    use lumisift::pi::params::PppParams;
+    use rayon::prelude::*;
+    let lib = fasttier::library();
+    let ppp = PppParams::default_set();
+    let t0 = std::time::Instant::now();
+    let jobs = dimer_jobs(lib, &|_| true);
+    // Rows already in the cache are kept unless --fresh (keys include a hash of each
+    // fragment's structure, so an edited fragment never reuses a row).
+    let cache = if std::env::args().any(|a| a == "--fresh") {
+        PairCache::default()
+    } else {
+        PairCache::shipped()
+    };
+    let rows: Vec<_> = jobs
+        .par_iter()
+        .map(|&j| {
+            let v = cache
+                .get(lib, j)
+                .unwrap_or_else(|| estimate_dimer(lib, j, &ppp, &EstimateParams::default()));
+            (j, v)
+        })
+        .collect();
+    let failed = rows.iter().filter(|r| !r.1.is_known()).count();
+    eprintln!(
+        "{} dimers ({failed} failed) in {:.1} s",
+        rows.len(),
+        t0.elapsed().as_secs_f64()
+    );
+    let head = lumisift::fast::pairs::SHIPPED_CACHE
+        .lines()
+        .take_while(|l| l.starts_with('#'))
+        .map(|l| format!("{l}\n"))
+        .collect::<String>();
+    let out = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("data/fast-pairs.csv");
+    std::fs::write(&out, head + &PairCache::to_csv(lib, &rows)).expect("write data/fast-pairs.csv");
+    println!("wrote data/fast-pairs.csv");
+}
+
 fn main() {
+    if std::env::args().any(|a| a == "--write-pairs") {
+        write_pairs();
+        return;
+    }
     let write = std::env::args().any(|a| a == "--write");
     let lib = fasttier::library();
     let t0 = std::time::Instant::now();

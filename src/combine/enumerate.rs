@@ -378,6 +378,18 @@ impl<'a> Enumerator<'a> {
             .collect()
     }
 
+    /// Can fragment `i` occur in an admitted tuple as far as the role filters go (its role's
+    /// include and exclude lists; end-caps always)?
+    pub fn admits_fragment(&self, i: usize) -> bool {
+        let f = &self.lib.fragments[i];
+        match f.role {
+            Role::Donor => self.params.donors.admits(&f.id),
+            Role::Acceptor => self.params.acceptors.admits(&f.id),
+            Role::Bridge => self.params.bridges.admits(&f.id),
+            Role::EndCap => true,
+        }
+    }
+
     /// Constraint check for an orbit representative.
     fn judge(&self, t: Tuple) -> TupleEvent {
         if t.mol_weight(self.lib) > self.params.max_mol_weight {

@@ -14,12 +14,13 @@
 //!   tier's torsion parameters. The equilibrium twist and ⟨cos²θ⟩ of every site pair are
 //!   tabulated once, so a tuple costs table look-ups.
 
+use super::pairs::{PairCache, PairEntry, PairTable};
 use crate::combine::{Arm, Tuple, assemble};
 use crate::fragments::{Fragment, Library};
 use crate::geometry::{layout, rotate_about_bond};
 use crate::model::{Architecture, Role};
 use crate::pi::ScfResult;
-use crate::pi::estimate::{local_levels, planar_scf};
+use crate::pi::estimate::{EstimateParams, local_levels, planar_scf};
 use crate::pi::params::PppParams;
 use crate::pi::torsion::{TorsionParams, profile, raw_scan_with};
 
@@ -220,6 +221,9 @@ pub struct PairTwist {
     pub cos2: f32,
     /// √⟨cos²θ⟩ (kept so the hot path takes no square root).
     pub rms_cos: f32,
+    /// The two sites' dimer in the card set's pair table (`PairTable::entries`; 0 = none):
+    /// kept beside the twist so an arm's link gives both in one look-up.
+    pub dimer: u32,
 }
 
 /// The additive pair model (module docs) for sites `x` and `y` (None = probe-like).
@@ -250,10 +254,12 @@ pub fn pair_twist(
         theta_deg: prof.equilibrium_deg as f32,
         cos2: cos2 as f32,
         rms_cos: cos2.sqrt() as f32,
+        dimer: 0,
     }
 }
 
-/// Every card of a library plus the dense site-pair twist table.
+/// Every card of a library plus the dense site-pair twist table and the pair table of
+/// donor–acceptor, donor–bridge and bridge–acceptor dimers ([`super::pairs`]).
 #[derive(Debug, Clone)]
 pub struct CardSet {
     pub cards: Vec<FragmentCard>,
@@ -265,28 +271,65 @@ pub struct CardSet {
     /// Per global site: |HOMO| and |LUMO| coefficient at the anchor (flat, for the hot path).
     pub site_homo: Vec<f64>,
     pub site_lumo: Vec<f64>,
+    /// π-tier values of every dimer of the fragments asked for.
+    pub pair_table: PairTable,
+    /// What a tuple none of whose dimers is known gets: the mean of the known entries.
+    pub pair_fallback: PairEntry,
 }
 
 impl CardSet {
     /// Cards of every fragment of `lib` (in library order) with the parameter set `ppp`, the
-    /// pair table at `temperature_k`. About 0.4 s for the shipped library on one core. None
-    /// when the probe itself cannot be scanned (a parameter set without aromatic carbon).
+    /// twist table and the pair table of all its donors, acceptors and bridges at
+    /// `temperature_k` (dimers from the shipped cache where it applies, the rest estimated).
+    /// None when the probe itself cannot be scanned (a parameter set without aromatic carbon).
     pub fn for_library(lib: &Library, ppp: &PppParams, temperature_k: f64) -> Option<CardSet> {
+        let cache = PairCache::shipped();
+        CardSet::for_library_with(lib, ppp, temperature_k, &|_| true, Some(&cache))
+    }
+
+    /// As [`Self::for_library`], pairing only the fragments `wanted` selects (a workflow's
+    /// include and exclude lists) and reading dimers from `cache` where it applies: cards are
+    /// computed for every fragment (cheap), dimers only for those.
+    pub fn for_library_with(
+        lib: &Library,
+        ppp: &PppParams,
+        temperature_k: f64,
+        wanted: &(dyn Fn(usize) -> bool + Sync),
+        cache: Option<&PairCache>,
+    ) -> Option<CardSet> {
+        use rayon::prelude::*;
         let reference = reference_profile(ppp)?;
         let cards = lib
             .fragments
-            .iter()
+            .par_iter()
             .map(|f| fragment_card(f, ppp))
             .collect();
+        let mut site_offset = Vec::with_capacity(lib.fragments.len());
+        let mut n = 0;
+        for f in &lib.fragments {
+            site_offset.push(n);
+            n += f.site_count();
+        }
+        let params = EstimateParams {
+            temperature_k,
+            ..EstimateParams::default()
+        };
+        let table = PairTable::build(lib, &site_offset, n, ppp, &params, wanted, cache);
         Some(CardSet::new(
             cards,
             &reference,
             &ppp.torsion_params(temperature_k),
+            table,
         ))
     }
 
     /// Assemble the set from cards computed in library order and tabulate every site pair.
-    pub fn new(cards: Vec<FragmentCard>, reference: &SiteProfile, tp: &TorsionParams) -> CardSet {
+    pub fn new(
+        cards: Vec<FragmentCard>,
+        reference: &SiteProfile,
+        tp: &TorsionParams,
+        pair_table: PairTable,
+    ) -> CardSet {
         let mut site_offset = Vec::with_capacity(cards.len());
         let mut all: Vec<Option<&SiteProfile>> = Vec::new();
         for c in &cards {
@@ -294,13 +337,17 @@ impl CardSet {
             all.extend(c.sites.iter().map(|s| s.as_ref()));
         }
         let n = all.len();
-        let mut pairs = Vec::with_capacity(n * n);
+        assert_eq!(pair_table.n_sites, n, "pair table numbered like the cards");
+        let mut pairs: Vec<PairTwist> = Vec::with_capacity(n * n);
         for i in 0..n {
             for j in 0..n {
                 pairs.push(if j < i {
                     pairs[j * n + i]
                 } else {
-                    pair_twist(all[i], all[j], reference, tp)
+                    let mut p = pair_twist(all[i], all[j], reference, tp);
+                    // At most one order of a site pair has a dimer (donor side first).
+                    p.dimer = pair_table.index[i * n + j].max(pair_table.index[j * n + i]);
+                    p
                 });
             }
         }
@@ -312,6 +359,7 @@ impl CardSet {
             .iter()
             .flat_map(|c| c.anchor_lumo2.iter().map(|x| x.sqrt()))
             .collect();
+        let pair_fallback = pair_table.mean_entry();
         CardSet {
             cards,
             site_offset,
@@ -319,6 +367,8 @@ impl CardSet {
             pairs,
             site_homo,
             site_lumo,
+            pair_table,
+            pair_fallback,
         }
     }
 

@@ -1,12 +1,14 @@
 //! Per-tuple descriptors from fragment cards, in O(arms) with no allocation: the donor–acceptor
-//! paths of the tuple, their orbital gaps and couplings, and the lowest local excitations.
+//! paths of the tuple, their orbital gaps and couplings, the lowest local excitations, and the
+//! arms' dimers from the pair table (`super::pairs`).
 
 use super::cards::CardSet;
+use super::pairs::PairEntry;
 use crate::combine::{Arm, Tuple};
 use crate::model::{Architecture, Role};
 
 /// Number of descriptors (including the constant).
-pub const N_FEATURES: usize = 14;
+pub const N_FEATURES: usize = 27;
 
 /// Names of the descriptors, in order (for fitted-model files and reports).
 pub const FEATURE_NAMES: [&str; N_FEATURES] = [
@@ -24,6 +26,19 @@ pub const FEATURE_NAMES: [&str; N_FEATURES] = [
     "coupling_best",
     "gap_over_local_s1_hinge_low",
     "gap_over_local_s1_hinge_high",
+    "pair_s1_min_ev",
+    "pair_t1_min_ev",
+    "pair_best_delta_est_ev",
+    "pair_best_log10_delta_est",
+    "pair_best_log10_f",
+    "pair_best_merit",
+    "pair_s1_second_gap_ev",
+    "bridge_db_s1_ev",
+    "bridge_db_log10_delta_est",
+    "bridge_db_log10_f",
+    "bridge_ba_s1_ev",
+    "bridge_ba_log10_delta_est",
+    "bridge_ba_log10_f",
 ];
 
 /// Scale of the through-bond coupling (eV): the PPP resonance integral of an aromatic C–C
@@ -36,6 +51,26 @@ pub const MIN_DENOMINATOR_EV: f64 = 0.3;
 /// sinks below the local excitations (knots chosen by this tool inside the library's range of
 /// gap − local S1, 1.5–4.5 eV; the fit decides how much each matters).
 pub const HINGE_KNOTS_EV: [f64; 2] = [2.5, 3.5];
+/// Cap (eV) of the gap between the second-lowest and the lowest dimer S1 over a tuple's arms
+/// (the value a single-arm tuple gets: arms further apart than this do not interact in the
+/// π tier's CIS; a choice of this tool, a few times the CT couplings of the library).
+pub const SECOND_GAP_CAP_EV: f64 = 0.5;
+
+/// Which of the model's forms applies to a tuple.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TupleClass {
+    /// One direct donor–acceptor arm with a known dimer: the tuple is its dimer (D–A), so the
+    /// pair table's π-tier values are used as they are.
+    Dimer,
+    /// Donor and acceptor meet through bridges (D–B–A, D–B–A–B–D).
+    Bridged,
+    /// Several direct arms (D–A–D, A–D–A, Dn–A), or one whose dimer is unknown.
+    MultiArm,
+}
+
+/// Indices of the descriptors that get a slope per bridge (the bridge changes how the arm's
+/// dimer ΔEST, f and the link coupling carry over to the bridged molecule).
+pub const BRIDGE_SLOPE_FEATURES: [usize; 3] = [17, 18, 11];
 
 /// What the model needs of one tuple besides the descriptor vector.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -52,6 +87,9 @@ pub struct TupleSummary {
     pub donor: usize,
     pub acceptor: usize,
     pub bridge: Option<usize>,
+    pub class: TupleClass,
+    /// The best arm's dimer (by its merit): for [`TupleClass::Dimer`] the tuple's own values.
+    pub dimer: PairEntry,
 }
 
 /// ln n for the path counts a tuple can have (no logarithm per tuple).
@@ -94,6 +132,17 @@ struct Path {
     bridge: Option<usize>,
 }
 
+/// Running statistics of the arms' dimers (pair table entries).
+struct PairStats<'a> {
+    best: Option<&'a PairEntry>,
+    /// For a bridged best arm: its donor–bridge and bridge–acceptor dimers (entry indices,
+    /// from the two links' twist-table slots).
+    halves: Option<(u32, u32)>,
+    s1_min: f64,
+    s1_second: f64,
+    t1_min: f64,
+}
+
 /// Summarise `t` and write its descriptors into `x`. Returns None when the tuple has no
 /// donor–acceptor path (every arm hydrogen, or roles that never meet).
 pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option<TupleSummary> {
@@ -103,6 +152,13 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
     let mut best: Option<Path> = None;
     let mut n_paths = 0usize;
     let mut mixing_sq_sum = 0.0;
+    let mut ps = PairStats {
+        best: None,
+        halves: None,
+        s1_min: f64::INFINITY,
+        s1_second: f64::INFINITY,
+        t1_min: f64::INFINITY,
+    };
     let mut local = |f: usize| {
         let c = &cards.cards[f];
         if c.s1_ev < s1_min {
@@ -114,14 +170,16 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
     };
     for (site, arm) in t.arms.iter().enumerate() {
         // (terminal fragment, ⟨cos²⟩ product, mixing, twist, bridge)
-        let (terminal, coupling, mixing, twist, bridge) = match *arm {
+        // (…, the bridge's site joined to the core)
+        // (…, the dimer slot of a direct arm's link, the bridged arm's two halves)
+        let (terminal, coupling, mixing, twist, bridge, direct, halves) = match *arm {
             Arm::H => continue,
             Arm::Terminal(f) => {
                 local(f);
                 let p = cards.pair(t.core, site, f, 0);
                 let c2 = p.cos2 as f64;
                 let (h, l) = link_mixing(cards, (f, 0), (t.core, site), p.rms_cos as f64);
-                (f, c2, h + l, p.theta_deg as f64, None)
+                (f, c2, h + l, p.theta_deg as f64, None, Some(p.dimer), None)
             }
             Arm::Bridged {
                 bridge,
@@ -147,6 +205,14 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
                     meet + h1 * h2 + l1 * l2,
                     b.theta_deg.max(a.theta_deg) as f64,
                     Some(bridge),
+                    None,
+                    // Donor–bridge and bridge–acceptor: the terminal's link first when the
+                    // terminal is the donor.
+                    Some(if core_is_donor {
+                        (a.dimer, b.dimer)
+                    } else {
+                        (b.dimer, a.dimer)
+                    }),
                 )
             }
         };
@@ -164,6 +230,36 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         } else {
             (term.homo_ev, core.lumo_ev)
         };
+        // The arm's dimer: the core site and the terminal's site 1 joined directly (for a
+        // bridged arm, the donor–acceptor pair without its bridge).
+        let e = match direct {
+            Some(k) => &cards.pair_table.entries[k as usize],
+            None => {
+                let (cs, ts) = (
+                    cards.site_offset[t.core] + site,
+                    cards.site_offset[terminal],
+                );
+                if core_is_donor {
+                    cards.pair_table.get(cs, ts)
+                } else {
+                    cards.pair_table.get(ts, cs)
+                }
+            }
+        };
+        if e.is_known() {
+            let s1 = e.v.s1_ev;
+            if s1 < ps.s1_min {
+                ps.s1_second = ps.s1_min;
+                ps.s1_min = s1;
+            } else if s1 < ps.s1_second {
+                ps.s1_second = s1;
+            }
+            ps.t1_min = ps.t1_min.min(e.v.t1_ev);
+            if ps.best.is_none_or(|b| e.merit > b.merit) {
+                ps.best = Some(e);
+                ps.halves = halves;
+            }
+        }
         n_paths += 1;
         mixing_sq_sum += mixing * mixing;
         let p = Path {
@@ -184,6 +280,29 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         };
     }
     let b = best?;
+    // A tuple none of whose dimers is known (failed SCFs) gets the table's neutral entry: the
+    // card descriptors alone then order it (the model has no better information).
+    let pe = ps.best.copied().unwrap_or(cards.pair_fallback);
+    if ps.best.is_none() {
+        ps.s1_min = pe.v.s1_ev;
+        ps.t1_min = pe.v.t1_ev;
+    }
+    // Halves of a bridged best arm (unknown ones: the fallback); zeros for a direct arm.
+    let half = |e: &PairEntry| {
+        let e = if e.is_known() {
+            e
+        } else {
+            &cards.pair_fallback
+        };
+        [e.v.s1_ev, e.log10_delta_est, e.log10_f]
+    };
+    let (db, ba) = match ps.halves {
+        Some((x, y)) => (
+            half(&cards.pair_table.entries[x as usize]),
+            half(&cards.pair_table.entries[y as usize]),
+        ),
+        None => ([0.0; 3], [0.0; 3]),
+    };
     let m2 = b.mixing * b.mixing;
     let over = b.gap - s1_min;
     *x = [
@@ -204,6 +323,19 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         b.coupling,
         (over - HINGE_KNOTS_EV[0]).max(0.0),
         (over - HINGE_KNOTS_EV[1]).max(0.0),
+        ps.s1_min,
+        ps.t1_min,
+        pe.v.delta_est_ev,
+        pe.log10_delta_est,
+        pe.log10_f,
+        pe.merit,
+        (ps.s1_second - ps.s1_min).min(SECOND_GAP_CAP_EV),
+        db[0],
+        db[1],
+        db[2],
+        ba[0],
+        ba[1],
+        ba[2],
     ];
     Some(TupleSummary {
         gap_ev: b.gap,
@@ -213,5 +345,13 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         donor: b.donor,
         acceptor: b.acceptor,
         bridge: b.bridge,
+        class: if b.bridge.is_some() {
+            TupleClass::Bridged
+        } else if n_paths == 1 && ps.best.is_some() {
+            TupleClass::Dimer
+        } else {
+            TupleClass::MultiArm
+        },
+        dimer: pe,
     })
 }

@@ -107,9 +107,8 @@ pub fn top_k_retention(truth: &[f64], screen: &[f64], top: usize, passed: usize)
 #[derive(Debug, Clone, PartialEq)]
 pub struct Sample {
     pub x: [f64; super::N_FEATURES],
-    pub donor: usize,
-    pub acceptor: usize,
-    pub bridge: Option<usize>,
+    /// The tuple's summary (class, best path's fragments, best arm's dimer).
+    pub summary: super::TupleSummary,
     /// Torsion-averaged π-tier values.
     pub s1_ev: f64,
     pub delta_est_ev: f64,
@@ -127,22 +126,30 @@ impl Sample {
     }
 }
 
-/// Fit the fast model (descriptor coefficients and per-slot fragment terms) by ridge
-/// regression with penalty `alpha` on standardised columns. `ids` are the library's fragment
-/// ids by index; only fragments seen in a slot get a term for it. The fit record is left for
-/// the caller to fill from held-out data.
+/// Fit the fast model by ridge regression with penalty `alpha` on standardised columns, one
+/// fit per target over every sample that is not a plain dimer (those take the pair table's
+/// values): a shared constant, an indicator of the several-direct-arms class, the descriptors
+/// once per class, per-bridge slopes and per-slot fragment indicators. `ids` are the library's
+/// fragment ids by index; only fragments seen in a slot get a term for it. The fit record is
+/// left for the caller to fill from held-out data.
 pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super::FastModel> {
+    use super::TupleClass;
+    use super::features::BRIDGE_SLOPE_FEATURES;
     use super::model::{Coefficients, FastModel, FitRecord};
+    let samples: Vec<&Sample> = samples
+        .iter()
+        .filter(|s| s.summary.class != TupleClass::Dimer)
+        .collect();
     let nf = ids.len();
     let mut seen = vec![[false; 3]; nf];
-    for s in samples {
-        seen[s.donor][0] = true;
-        seen[s.acceptor][1] = true;
-        if let Some(b) = s.bridge {
+    for s in &samples {
+        seen[s.summary.donor][0] = true;
+        seen[s.summary.acceptor][1] = true;
+        if let Some(b) = s.summary.bridge {
             seen[b][2] = true;
         }
     }
-    // Columns: descriptors, then one indicator per (slot, seen fragment).
+    // Fragment columns: one indicator per (slot, seen fragment).
     let mut cols: Vec<(usize, usize)> = Vec::new();
     for slot in 0..3 {
         for (f, s) in seen.iter().enumerate() {
@@ -151,18 +158,35 @@ pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super
             }
         }
     }
+    let bridges: Vec<usize> = (0..nf).filter(|&f| seen[f][2]).collect();
+    let p = super::N_FEATURES;
+    let nb = BRIDGE_SLOPE_FEATURES.len();
+    // Layout: [1, multi, bridged × x[1..], multi × x[1..], slopes, fragments].
+    let (o_b, o_m, o_s) = (2, 2 + (p - 1), 2 + 2 * (p - 1));
+    let o_f = o_s + nb * bridges.len();
     let rows: Vec<Vec<f64>> = samples
         .iter()
         .map(|s| {
-            let mut r = s.x.to_vec();
-            r.extend(cols.iter().map(|&(slot, f)| {
+            let multi = s.summary.class == TupleClass::MultiArm;
+            let mut r = vec![0.0; o_f + cols.len()];
+            r[0] = 1.0;
+            r[1] = if multi { 1.0 } else { 0.0 };
+            let o = if multi { o_m } else { o_b };
+            r[o..o + p - 1].copy_from_slice(&s.x[1..]);
+            if let Some(b) = s.summary.bridge {
+                let k = bridges.iter().position(|&x| x == b).expect("seen");
+                for (j, &f) in BRIDGE_SLOPE_FEATURES.iter().enumerate() {
+                    r[o_s + nb * k + j] = s.x[f];
+                }
+            }
+            for (c, &(slot, f)) in cols.iter().enumerate() {
                 let hit = match slot {
-                    0 => s.donor == f,
-                    1 => s.acceptor == f,
-                    _ => s.bridge == Some(f),
+                    0 => s.summary.donor == f,
+                    1 => s.summary.acceptor == f,
+                    _ => s.summary.bridge == Some(f),
                 };
-                if hit { 1.0 } else { 0.0 }
-            }));
+                r[o_f + c] = if hit { 1.0 } else { 0.0 };
+            }
             r
         })
         .collect();
@@ -171,20 +195,42 @@ pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super
         let y: Vec<f64> = samples.iter().map(|s| s.targets()[k]).collect();
         w.push(ridge(&rows, &y, alpha)?);
     }
-    let p = super::N_FEATURES;
     let mut terms: [std::collections::BTreeMap<String, super::model::Terms>; 3] =
         Default::default();
     for (c, &(slot, f)) in cols.iter().enumerate() {
-        terms[slot].insert(ids[f].clone(), [w[0][p + c], w[1][p + c], w[2][p + c]]);
+        terms[slot].insert(
+            ids[f].clone(),
+            [w[0][o_f + c], w[1][o_f + c], w[2][o_f + c]],
+        );
     }
+    let mut bridge_slopes = std::collections::BTreeMap::new();
+    for (k, &b) in bridges.iter().enumerate() {
+        let mut sl = [[0.0; 3]; 3];
+        for (t, row) in sl.iter_mut().enumerate() {
+            for (j, v) in row.iter_mut().enumerate() {
+                *v = w[t][o_s + nb * k + j];
+            }
+        }
+        bridge_slopes.insert(ids[b].clone(), sl);
+    }
+    let block = |o: usize, multi: bool| {
+        let one = |t: usize| {
+            let mut v = vec![w[t][0] + if multi { w[t][1] } else { 0.0 }];
+            v.extend_from_slice(&w[t][o..o + p - 1]);
+            v
+        };
+        Coefficients {
+            s1_ev: one(0),
+            log10_delta_est: one(1),
+            log10_f: one(2),
+        }
+    };
     let [donor_terms, acceptor_terms, bridge_terms] = terms;
     Some(FastModel {
         features: super::FEATURE_NAMES.iter().map(|s| s.to_string()).collect(),
-        coefficients: Coefficients {
-            s1_ev: w[0][..p].to_vec(),
-            log10_delta_est: w[1][..p].to_vec(),
-            log10_f: w[2][..p].to_vec(),
-        },
+        bridged: block(o_b, false),
+        multi_arm: block(o_m, true),
+        bridge_slopes,
         donor_terms,
         acceptor_terms,
         bridge_terms,
@@ -227,7 +273,7 @@ pub fn evaluate(samples: &[Sample], model: &super::BoundModel) -> Evaluation {
     let p: Vec<(f64, f64, f64)> = samples
         .iter()
         .map(|s| {
-            let (a, b, c, _) = model.predict_descriptors(&s.x, s.donor, s.acceptor, s.bridge);
+            let (a, b, c, _) = model.predict_descriptors(&s.x, &s.summary);
             (a, b, c)
         })
         .collect();

@@ -1,18 +1,21 @@
-//! The fast tier's model: per quantity, a linear model on the physical descriptors of
-//! [`super::features`] plus additive fragment terms (one per fragment and slot — donor,
-//! acceptor, bridge of the best donor–acceptor path — the Free–Wilson form of additive
-//! substituent contributions: Free & Wilson, J. Med. Chem. 7, 395 (1964)). Quantities: S1,
-//! log10(ΔEST + 0.005 eV) and log10(f + 10⁻⁴), all torsion-averaged π-tier values; T1 is
-//! S1 − ΔEST so the three never contradict. Fitted by `examples/fit_fast_tier.rs`, stored in
-//! `data/fast-tier.toml` with the fit's held-out figures. A fragment the fit never saw gets no
-//! term (and the estimate says so).
+//! The fast tier's model. A tuple that is one donor–acceptor dimer (D–A) takes the pair
+//! table's π-tier values as they are ([`super::pairs`]: a cached π calculation, exact). Every
+//! other tuple gets, per quantity, a linear model on the physical descriptors of
+//! [`super::features`] with one coefficient vector per class (bridged arms; several direct
+//! arms), plus per-bridge slopes on the arm dimer's log ΔEST, log f and the link coupling, plus
+//! additive fragment terms (one per fragment and slot — donor, acceptor, bridge of the best
+//! donor–acceptor path — the Free–Wilson form of additive substituent contributions: Free &
+//! Wilson, J. Med. Chem. 7, 395 (1964)). Quantities: S1, log10(ΔEST + 0.005 eV) and
+//! log10(f + 10⁻⁴), all torsion-averaged π-tier values; T1 is S1 − ΔEST so the three never
+//! contradict. Fitted by `examples/fit_fast_tier.rs`, stored in `data/fast-tier.toml` with the
+//! fit's held-out figures. A fragment the fit never saw gets no term (and the estimate says so).
 
 use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
 use super::cards::CardSet;
-use super::features::{FEATURE_NAMES, N_FEATURES, describe};
+use super::features::{BRIDGE_SLOPE_FEATURES, FEATURE_NAMES, N_FEATURES, TupleClass, describe};
 use crate::combine::Tuple;
 
 /// The shipped model.
@@ -29,6 +32,8 @@ pub const TARGETS: [&str; 3] = ["s1_ev", "log10_delta_est", "log10_f"];
 
 /// Per-fragment additive terms, one value per target.
 pub type Terms = [f64; 3];
+/// Per-bridge slopes: `[target][k]` multiplies descriptor `BRIDGE_SLOPE_FEATURES[k]`.
+pub type Slopes = [[f64; 3]; 3];
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -45,6 +50,7 @@ pub struct FitRecord {
     pub fixture: String,
     pub split: String,
     pub ridge_alpha: f64,
+    /// Rows fitted (fitting rows that are not plain D–A dimers).
     pub n_fit: usize,
     pub held_out: super::fit::Evaluation,
 }
@@ -53,7 +59,12 @@ pub struct FitRecord {
 #[serde(deny_unknown_fields)]
 pub struct FastModel {
     pub features: Vec<String>,
-    pub coefficients: Coefficients,
+    /// Descriptor coefficients of tuples whose arms are bridged.
+    pub bridged: Coefficients,
+    /// Descriptor coefficients of tuples with several direct arms.
+    pub multi_arm: Coefficients,
+    /// Bridge id → slopes (`Slopes`) for bridged tuples.
+    pub bridge_slopes: BTreeMap<String, Slopes>,
     /// Fragment id → terms, per slot of the best path.
     pub donor_terms: BTreeMap<String, Terms>,
     pub acceptor_terms: BTreeMap<String, Terms>,
@@ -83,7 +94,9 @@ pub struct FastEstimate {
 /// A model bound to one library's cards: fragment terms by library index.
 #[derive(Debug, Clone)]
 pub struct BoundModel {
-    w: [[f64; N_FEATURES]; 3],
+    /// `[class][target]`: class 0 bridged, 1 several direct arms.
+    w: [[[f64; N_FEATURES]; 3]; 2],
+    slopes: Vec<Option<Slopes>>,
     /// Per library index: Some(terms) when fitted.
     donor: Vec<Option<Terms>>,
     acceptor: Vec<Option<Terms>>,
@@ -101,17 +114,18 @@ pub struct BoundModel {
 impl FastModel {
     pub fn parse(text: &str) -> Result<FastModel, String> {
         let m: FastModel = toml::from_str(text).map_err(|e| e.to_string())?;
-        let c = &m.coefficients;
-        for (name, v) in [
-            ("s1_ev", &c.s1_ev),
-            ("log10_delta_est", &c.log10_delta_est),
-            ("log10_f", &c.log10_f),
-        ] {
-            if v.len() != N_FEATURES {
-                return Err(format!(
-                    "coefficients.{name}: {} values for {N_FEATURES} descriptors",
-                    v.len()
-                ));
+        for (class, c) in [("bridged", &m.bridged), ("multi_arm", &m.multi_arm)] {
+            for (name, v) in [
+                ("s1_ev", &c.s1_ev),
+                ("log10_delta_est", &c.log10_delta_est),
+                ("log10_f", &c.log10_f),
+            ] {
+                if v.len() != N_FEATURES {
+                    return Err(format!(
+                        "{class}.{name}: {} values for {N_FEATURES} descriptors",
+                        v.len()
+                    ));
+                }
             }
         }
         if m.features.iter().map(String::as_str).ne(FEATURE_NAMES) {
@@ -130,12 +144,14 @@ impl FastModel {
             cards.cards.iter().map(|c| m.get(&c.id).copied()).collect()
         };
         let arr = |v: &[f64]| -> [f64; N_FEATURES] { v.try_into().expect("length checked") };
+        let block = |c: &Coefficients| [arr(&c.s1_ev), arr(&c.log10_delta_est), arr(&c.log10_f)];
         BoundModel {
-            w: [
-                arr(&self.coefficients.s1_ev),
-                arr(&self.coefficients.log10_delta_est),
-                arr(&self.coefficients.log10_f),
-            ],
+            w: [block(&self.bridged), block(&self.multi_arm)],
+            slopes: cards
+                .cards
+                .iter()
+                .map(|c| self.bridge_slopes.get(&c.id).copied())
+                .collect(),
             donor: look(&self.donor_terms),
             acceptor: look(&self.acceptor_terms),
             bridge: look(&self.bridge_terms),
@@ -151,9 +167,22 @@ impl FastModel {
     }
 }
 
+/// w · x with four partial sums (independent chains the CPU can overlap and the compiler can
+/// vectorise; one running sum would serialise the additions).
 #[inline]
 fn dot(w: &[f64; N_FEATURES], x: &[f64; N_FEATURES]) -> f64 {
-    w.iter().zip(x.iter()).map(|(a, b)| a * b).sum()
+    let mut acc = [0.0f64; 4];
+    let n = N_FEATURES / 4 * 4;
+    for i in (0..n).step_by(4) {
+        for k in 0..4 {
+            acc[k] += w[i + k] * x[i + k];
+        }
+    }
+    let mut s = (acc[0] + acc[1]) + (acc[2] + acc[3]);
+    for i in n..N_FEATURES {
+        s += w[i] * x[i];
+    }
+    s
 }
 
 impl BoundModel {
@@ -163,8 +192,15 @@ impl BoundModel {
     pub fn merit(&self, cards: &CardSet, t: &Tuple) -> Option<(f64, bool)> {
         let mut x = [0.0; N_FEATURES];
         let s = describe(cards, t, &mut x)?;
-        let (y, unseen) = self.raw(&x, s.donor, s.acceptor, s.bridge);
-        let d = (10f64.powf(y[1]) - DEST_OFFSET_EV).max(0.0);
+        if s.class == TupleClass::Dimer {
+            let e = &s.dimer;
+            return Some((
+                self.merit_const + e.log10_s1sq_f - e.v.delta_est_ev.max(0.0) * self.merit_per_ev,
+                false,
+            ));
+        }
+        let (y, unseen) = self.raw(&x, s.class, s.donor, s.acceptor, s.bridge);
+        let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);
         Some((
             // log10(f + floor) with f clamped at zero, as in predict().
             self.merit_const + 2.0 * y[0].log10() + y[2].max(self.log10_f_floor)
@@ -173,16 +209,19 @@ impl BoundModel {
         ))
     }
 
-    /// The three linear predictions (S1, log10(ΔEST + offset), log10(f + floor)).
+    /// The three linear predictions (S1, log10(ΔEST + offset), log10(f + floor)) of a fitted
+    /// class (bridged or several direct arms).
     #[inline]
     fn raw(
         &self,
         x: &[f64; N_FEATURES],
+        class: TupleClass,
         donor: usize,
         acceptor: usize,
         bridge: Option<usize>,
     ) -> ([f64; 3], bool) {
-        let mut y = [dot(&self.w[0], x), dot(&self.w[1], x), dot(&self.w[2], x)];
+        let w = &self.w[usize::from(class != TupleClass::Bridged)];
+        let mut y = [dot(&w[0], x), dot(&w[1], x), dot(&w[2], x)];
         let mut unseen = false;
         let mut add = |terms: Option<Terms>| match terms {
             Some(v) => {
@@ -196,22 +235,31 @@ impl BoundModel {
         add(self.acceptor[acceptor]);
         if let Some(b) = bridge {
             add(self.bridge[b]);
+            if let Some(sl) = self.slopes[b] {
+                for (k, yk) in y.iter_mut().enumerate() {
+                    for (j, &f) in BRIDGE_SLOPE_FEATURES.iter().enumerate() {
+                        *yk += sl[k][j] * x[f];
+                    }
+                }
+            }
         }
         (y, unseen)
     }
 
-    /// (S1, ΔEST, f, unseen fragment) from descriptors and the best path's fragments.
+    /// (S1, ΔEST, f, unseen fragment) from a tuple's descriptors and summary.
     #[inline]
     pub fn predict_descriptors(
         &self,
         x: &[f64; N_FEATURES],
-        donor: usize,
-        acceptor: usize,
-        bridge: Option<usize>,
+        s: &super::TupleSummary,
     ) -> (f64, f64, f64, bool) {
-        let (y, unseen) = self.raw(x, donor, acceptor, bridge);
-        let d = (10f64.powf(y[1]) - DEST_OFFSET_EV).max(0.0);
-        let f = (10f64.powf(y[2]) - F_FLOOR).max(0.0);
+        if s.class == TupleClass::Dimer {
+            let v = &s.dimer.v;
+            return (v.s1_ev, v.delta_est_ev.max(0.0), v.f_s1.max(0.0), false);
+        }
+        let (y, unseen) = self.raw(x, s.class, s.donor, s.acceptor, s.bridge);
+        let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);
+        let f = ((y[2] * std::f64::consts::LN_10).exp() - F_FLOOR).max(0.0);
         (y[0], d, f, unseen)
     }
 
@@ -220,7 +268,7 @@ impl BoundModel {
     pub fn predict(&self, cards: &CardSet, t: &Tuple) -> Option<FastEstimate> {
         let mut x = [0.0; N_FEATURES];
         let s = describe(cards, t, &mut x)?;
-        let (s1, d, f, unseen) = self.predict_descriptors(&x, s.donor, s.acceptor, s.bridge);
+        let (s1, d, f, unseen) = self.predict_descriptors(&x, &s);
         Some(FastEstimate {
             s1_ev: s1,
             t1_ev: s1 - d,

@@ -72,9 +72,7 @@ pub fn samples(lib: &Library, set: &CardSet) -> (Vec<Sample>, Vec<Sample>) {
         let num = |k: usize| r[k].parse::<f64>().expect("number");
         let sample = Sample {
             x,
-            donor: s.donor,
-            acceptor: s.acceptor,
-            bridge: s.bridge,
+            summary: s,
             s1_ev: num(s1),
             delta_est_ev: num(dest),
             f_s1: num(f),
