@@ -301,14 +301,19 @@ pub fn read_path(path: impl AsRef<Path>) -> ReadOutcome {
 
 /// [`read_path`] with options.
 pub fn read_path_with(path: impl AsRef<Path>, options: ReadOptions) -> ReadOutcome {
-    let path = path.as_ref();
+    let (name, text) = read_lossy(path.as_ref())?;
+    read_str_with(&text, &name, options)
+}
+
+/// A file's display name and its text (lossy UTF-8: binary bytes cannot fail the read).
+pub(crate) fn read_lossy(path: &Path) -> Result<(String, String), QcError> {
     let name = path.display().to_string();
     let bytes = std::fs::read(path).map_err(|source| QcError::Io {
         file: name.clone(),
         source,
     })?;
-    let text = String::from_utf8_lossy(&bytes);
-    read_str_with(&text, &name, options)
+    let text = String::from_utf8_lossy(&bytes).into_owned();
+    Ok((name, text))
 }
 
 /// Parse the text of an output file; `name` is used in errors only.

@@ -151,13 +151,8 @@ pub struct TableRow {
 pub fn read_table_path(
     path: impl AsRef<Path>,
 ) -> Result<(Vec<TableRow>, Vec<Diagnostic>), QcError> {
-    let path = path.as_ref();
-    let name = path.display().to_string();
-    let bytes = std::fs::read(path).map_err(|source| QcError::Io {
-        file: name.clone(),
-        source,
-    })?;
-    read_table_str(&String::from_utf8_lossy(&bytes), &name)
+    let (name, text) = super::read_lossy(path.as_ref())?;
+    read_table_str(&text, &name)
 }
 
 /// Read a results table from text; `name` is used in errors only. A missing header or a missing
