@@ -628,11 +628,7 @@ fn print_later_stages(s: &campaign::RunSummary) {
                 sl.info[i].canonical_smiles
             );
         }
-        eprintln!(
-            "  Predictions are estimates, not safety data: before any synthesis consult the safety \
-             data sheets, your institution's chemical hygiene plan and local regulations, and work \
-             under qualified supervision."
-        );
+        eprintln!("  {}", campaign::report_stage::SAFETY_NOTICE);
     }
     for p in &s.report_files {
         eprintln!("report: wrote {}", p.display());

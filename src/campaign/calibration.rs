@@ -93,17 +93,7 @@ pub fn estimate_views(
     let other = |e: String| CampaignError::Other(format!("{}: {e}", store.path.display()));
     let hash = match param_hash {
         Some(h) => h.to_string(),
-        None => store
-            .connection()
-            .query_row(
-                "SELECT param_hash FROM results WHERE stage = 'estimate'
-                 GROUP BY param_hash ORDER BY count(*) DESC, param_hash LIMIT 1",
-                [],
-                |r| r.get::<_, String>(0),
-            )
-            .map_err(|_| {
-                other("no estimate results in the store (run the estimate stage)".into())
-            })?,
+        None => dominant_estimate_hash(store)?,
     };
     let mut out = Vec::new();
     crate::report::for_each_estimate(store.connection(), |id, smi, h, v| {
@@ -116,6 +106,54 @@ pub fn estimate_views(
     })
     .map_err(other)?;
     Ok((hash, out))
+}
+
+/// The estimate parameter hash with the most records (ties: the smaller hash): the store's
+/// main estimate, which calibration, suggestion and the shortlist work on.
+pub fn dominant_estimate_hash(store: &Store) -> Result<String, CampaignError> {
+    store
+        .connection()
+        .query_row(
+            "SELECT param_hash FROM results WHERE stage = 'estimate'
+             GROUP BY param_hash ORDER BY count(*) DESC, param_hash LIMIT 1",
+            [],
+            |r| r.get::<_, String>(0),
+        )
+        .map_err(|_| {
+            CampaignError::Other(format!(
+                "{}: no estimate results in the store (run the estimate stage)",
+                store.path.display()
+            ))
+        })
+}
+
+/// The newest applied calibration of each candidate made on the estimates of
+/// `estimate_hash`: candidate id → (stage key `kind:id`, record).
+pub fn calibrated_records(
+    store: &Store,
+    estimate_hash: &str,
+) -> Result<HashMap<String, (String, serde_json::Value)>, CampaignError> {
+    let sq = CampaignError::sqlite(&store.path);
+    let mut st = store
+        .connection()
+        .prepare(
+            "SELECT candidate_id, param_hash, data FROM results WHERE stage = ?1
+             ORDER BY CAST(json_extract(data, '$.calibration_id') AS INTEGER)",
+        )
+        .map_err(&sq)?;
+    let mut rows = st.query([CALIBRATED_STAGE]).map_err(&sq)?;
+    let mut out = HashMap::new();
+    while let Some(r) = rows.next().map_err(&sq)? {
+        let id: String = r.get(0).map_err(&sq)?;
+        let key: String = r.get(1).map_err(&sq)?;
+        let data: String = r.get(2).map_err(&sq)?;
+        if let Ok(v) = serde_json::from_str::<serde_json::Value>(&data)
+            && v["estimate_param_hash"] == estimate_hash
+        {
+            out.insert(id, (key, v));
+        }
+    }
+    Ok(out)
 }
 
 /// Fragment ids of every candidate (from its tuples), sorted, repeats kept per tuple.
@@ -426,7 +464,7 @@ pub fn suggest_batch(
     use crate::chem::{FingerprintParams, circular_fingerprint, parse_smiles};
     let rates = crate::photophysics::RateParams::default();
     let kt_ln10 = crate::photophysics::K_B_EV * rates.temperature_k * std::f64::consts::LN_10;
-    let (_, views) = estimate_views(store, None)?;
+    let (hash, views) = estimate_views(store, None)?;
     let other = |e: String| CampaignError::Other(format!("{}: {e}", store.path.display()));
     // Computed candidates: any matched imported row.
     let mut computed_ids: Vec<String> = {
@@ -441,26 +479,10 @@ pub fn suggest_batch(
     };
     computed_ids.sort();
     // Newest calibrated record per candidate.
-    let mut cal: HashMap<String, serde_json::Value> = HashMap::new();
-    {
-        let mut st = store
-            .connection()
-            .prepare(
-                "SELECT r.candidate_id, r.data FROM results r WHERE r.stage = ?1
-                 ORDER BY CAST(json_extract(r.data, '$.calibration_id') AS INTEGER)",
-            )
-            .map_err(|e| other(e.to_string()))?;
-        let rows = st
-            .query_map([CALIBRATED_STAGE], |r| {
-                Ok((r.get::<_, String>(0)?, r.get::<_, String>(1)?))
-            })
-            .map_err(|e| other(e.to_string()))?;
-        for (id, data) in rows.flatten() {
-            if let Ok(v) = serde_json::from_str(&data) {
-                cal.insert(id, v);
-            }
-        }
-    }
+    let cal: HashMap<String, serde_json::Value> = calibrated_records(store, &hash)?
+        .into_iter()
+        .map(|(id, (_, v))| (id, v))
+        .collect();
     let fpp = FingerprintParams::default();
     let fp_of = |smi: &str| {
         parse_smiles(smi)

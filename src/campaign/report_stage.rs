@@ -43,15 +43,19 @@ impl Default for ReportSettings {
     }
 }
 
-/// The safety cautions every report and shortlist carries.
-pub const CAUTIONS: [&str; 3] = [
+/// The safety cautions every report and shortlist carries, besides
+/// [`crate::synth::GENERAL_NOTICE`] (SDS, hygiene plan, regulations, supervision).
+pub const CAUTIONS: [&str; 2] = [
     "Every value here is a model estimate, not a measurement and not safety data.",
-    "Before any synthesis consult the safety data sheets of every reagent, your institution's \
-     chemical hygiene plan and local regulations, and work under qualified supervision.",
     "Coupling chemistry is suggested from structure rules only; reagent classes named (palladium \
      catalysts and phosphine ligands, strong bases, organolithiums, copper salts, cyanide \
      sources) carry their own hazards.",
 ];
+
+/// The one-line notice the command line prints under a shortlist.
+pub const SAFETY_NOTICE: &str = "Predictions are estimates, not safety data: before any \
+     synthesis consult the safety data sheets, your institution's chemical hygiene plan and local \
+     regulations, and work under qualified supervision.";
 
 /// One reference emitter.
 #[derive(Debug, Clone, PartialEq)]
@@ -173,8 +177,8 @@ pub fn report_data(
             candidate_id: s.candidate_id.clone(),
             name: String::new(),
             canonical_smiles: inf.canonical_smiles.clone(),
-            s1_ev: inf.record["s1_ev"].as_f64().unwrap_or(f64::NAN),
-            t1_ev: inf.record["t1_ev"].as_f64().unwrap_or(f64::NAN),
+            s1_ev: inf.s1_ev,
+            t1_ev: inf.t1_ev,
             delta_est_ev: v(s.delta_est_ev),
             osc_strength: v(s.osc_strength),
             calibrated: inf.calibrated.map(|c| CalibratedView {
@@ -334,8 +338,8 @@ pub fn report_data(
                 &inf.candidate_id[..12.min(inf.candidate_id.len())],
                 inf.canonical_smiles
             ),
-            torsion: torsion_of(&inf.record),
-            drawing: drawing_of(&inf.canonical_smiles, &inf.record),
+            torsion: torsion_of(&out.pick_records[k]),
+            drawing: drawing_of(&inf.canonical_smiles, &out.pick_records[k]),
             notes,
         });
     }
@@ -354,11 +358,13 @@ pub fn report_data(
             "estimate parameter hash".into(),
             i.estimate_param_hash.clone(),
         ));
+    }
+    if let Some(r) = out.pick_records.first() {
         parameters.push((
             "rate and band settings".into(),
-            i.record["photophysics"]["rate_params"].to_string()
+            r["photophysics"]["rate_params"].to_string()
                 + " "
-                + &i.record["photophysics"]["band"].to_string(),
+                + &r["photophysics"]["band"].to_string(),
         ));
     }
     let mut cautions: Vec<String> = CAUTIONS.iter().map(|s| s.to_string()).collect();
@@ -471,7 +477,7 @@ pub fn write_report(
         let Ok(mol) = crate::chem::parse_smiles(&inf.canonical_smiles) else {
             continue;
         };
-        let geom: Vec<[f64; 3]> = inf.record["geometry"]
+        let geom: Vec<[f64; 3]> = out.pick_records[k]["geometry"]
             .as_array()
             .map(|a| {
                 a.iter()

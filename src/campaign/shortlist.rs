@@ -11,7 +11,7 @@ use std::collections::HashMap;
 use rusqlite::params;
 use serde::{Deserialize, Serialize};
 
-use super::calibration::{CALIBRATED_STAGE, fragment_groups};
+use super::calibration::{calibrated_records, dominant_estimate_hash, fragment_groups};
 use super::error::CampaignError;
 use super::store::Store;
 use crate::rank::{DiversityParams, PickInput, RankParams, Scored, Uncertain, pick_diverse, rank};
@@ -58,9 +58,9 @@ pub struct RowInfo {
     pub peak_nm: f64,
     pub log10_k_risc: f64,
     pub tuple_key: Option<String>,
-    /// The whole estimate record (for torsion scans and densities in the report).
-    #[serde(skip)]
-    pub record: serde_json::Value,
+    /// Equilibrium-twist S1 and T1 of the π tier (eV), uncalibrated.
+    pub s1_ev: f64,
+    pub t1_ev: f64,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -83,6 +83,11 @@ pub struct ShortlistOutcome {
     pub stop: crate::rank::StopReason,
     /// Synthesis plan of each pick (same order as `picks`).
     pub plans: Vec<Option<SynthPlan>>,
+    /// The full estimate record of each pick (same order as `picks`; torsion scans, densities,
+    /// geometry and rate settings for the report). Only the picks' records are held: a store
+    /// of 10^6 candidates would not fit in memory otherwise.
+    #[serde(skip)]
+    pub pick_records: Vec<serde_json::Value>,
 }
 
 /// Level of the calibration intervals (the calibration's coverage, 90 % by default).
@@ -95,15 +100,7 @@ pub fn gather(
     use_calibration: bool,
 ) -> Result<(Vec<Scored>, Vec<RowInfo>), CampaignError> {
     let other = |e: String| CampaignError::Other(format!("{}: {e}", store.path.display()));
-    let hash: String = store
-        .connection()
-        .query_row(
-            "SELECT param_hash FROM results WHERE stage = 'estimate'
-             GROUP BY param_hash ORDER BY count(*) DESC, param_hash LIMIT 1",
-            [],
-            |r| r.get(0),
-        )
-        .map_err(|_| other("no estimate results in the store (run the estimate stage)".into()))?;
+    let hash = dominant_estimate_hash(store)?;
     let groups = fragment_groups(store)?;
     let sq = CampaignError::sqlite(&store.path);
     let mut mw: HashMap<String, f64> = HashMap::new();
@@ -131,27 +128,11 @@ pub fn gather(
             tuple_of.entry(id).or_insert(key);
         }
     }
-    let mut cal: HashMap<String, (String, serde_json::Value)> = HashMap::new();
-    if use_calibration {
-        let mut st = store
-            .connection()
-            .prepare(
-                "SELECT candidate_id, param_hash, data FROM results WHERE stage = ?1
-                 ORDER BY CAST(json_extract(data, '$.calibration_id') AS INTEGER)",
-            )
-            .map_err(&sq)?;
-        let mut rows = st.query([CALIBRATED_STAGE]).map_err(&sq)?;
-        while let Some(r) = rows.next().map_err(&sq)? {
-            let id: String = r.get(0).map_err(&sq)?;
-            let key: String = r.get(1).map_err(&sq)?;
-            let data: String = r.get(2).map_err(&sq)?;
-            if let Ok(v) = serde_json::from_str::<serde_json::Value>(&data)
-                && v["estimate_param_hash"] == hash.as_str()
-            {
-                cal.insert(id, (key, v));
-            }
-        }
-    }
+    let cal = if use_calibration {
+        calibrated_records(store, &hash)?
+    } else {
+        HashMap::new()
+    };
     let mut rows = Vec::new();
     let mut info = Vec::new();
     crate::report::for_each_estimate(store.connection(), |id, smi, h, v| {
@@ -242,7 +223,8 @@ pub fn gather(
                     }
                 }),
             tuple_key: tuple_of.get(id).cloned(),
-            record: v.clone(),
+            s1_ev: f("s1_ev").unwrap_or(f64::NAN),
+            t1_ev: f("t1_ev").unwrap_or(f64::NAN),
         });
         Ok(())
     })
@@ -301,6 +283,10 @@ pub fn shortlist(
             Some(crate::synth::plan(&cand, lib, &settings.effort))
         })
         .collect();
+    let pick_records = picks
+        .iter()
+        .map(|&i| estimate_record(store, &info[i].candidate_id, &info[i].estimate_param_hash))
+        .collect::<Result<Vec<_>, _>>()?;
     let settings_json = serde_json::to_string(settings).expect("serialisable");
     let param_hash = blake3::hash(settings_json.as_bytes()).to_hex()[..16].to_string();
     let spath = store.path.clone();
@@ -343,5 +329,24 @@ pub fn shortlist(
         picks,
         stop: picked.stop,
         plans,
+        pick_records,
     })
+}
+
+/// One stored estimate record (JSON).
+fn estimate_record(
+    store: &Store,
+    id: &str,
+    param_hash: &str,
+) -> Result<serde_json::Value, CampaignError> {
+    let data: String = store
+        .connection()
+        .query_row(
+            "SELECT data FROM results WHERE candidate_id = ?1 AND stage = 'estimate'
+             AND param_hash = ?2",
+            params![id, param_hash],
+            |r| r.get(0),
+        )
+        .map_err(CampaignError::sqlite(&store.path))?;
+    serde_json::from_str(&data).map_err(|e| CampaignError::Other(format!("{id}: {e}")))
 }

@@ -114,11 +114,7 @@ pub fn report_cmd(a: &ReportArgs) -> ExitCode {
             for f in files {
                 eprintln!("wrote {}", f.display());
             }
-            eprintln!(
-                "Predictions are estimates, not safety data: before any synthesis consult the \
-                 safety data sheets, your institution's chemical hygiene plan and local \
-                 regulations, and work under qualified supervision."
-            );
+            eprintln!("{}", lumisift::campaign::report_stage::SAFETY_NOTICE);
             ExitCode::SUCCESS
         }
         Err(e) => fail(e),
