@@ -45,7 +45,7 @@ fn bench(c: &mut Criterion) {
         b.iter(|| {
             let mut s = 0.0;
             for t in &tuples {
-                if let Some((m, _)) = bound.merit(&set, black_box(t)) {
+                if let Some((m, _)) = bound.score(&set, black_box(t)) {
                     s += m;
                 }
             }

@@ -503,7 +503,7 @@ fn run(
         Ok(s) => {
             if let Some(sc) = &s.screen {
                 eprintln!(
-                    "screen: {} tuples scored by the fast tier ({} without a donor–acceptor path, {} outside the model's range); {} passed (log10 k_TADF ≥ {:.2}; {} with a fragment outside the fitted set); cards and pair table {:.2} s, scoring {:.2} s ({:.0} tuples/s incl. enumeration)",
+                    "screen: {} tuples scored by the fast tier ({} without a donor–acceptor path, {} outside the model's range); {} passed (screen score ≥ {:.2} on the log10 k_TADF scale; {} with a fragment outside the fitted set); cards and pair table {:.2} s, scoring {:.2} s ({:.0} tuples/s incl. enumeration)",
                     sc.scored,
                     sc.no_path,
                     sc.non_finite,

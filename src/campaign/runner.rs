@@ -101,7 +101,8 @@ pub struct ScreenSummary {
     /// Admitted tuples whose predicted merit is not a finite number (never passed).
     pub non_finite: u64,
     pub passed: u64,
-    /// Lowest log10 k_TADF (s⁻¹) among the passed tuples.
+    /// Lowest screen score (the fast tier's ordering key, on the log10 k_TADF scale in s⁻¹)
+    /// among the passed tuples.
     pub threshold_merit: f64,
     /// Passed tuples with a fragment the fast model was not fitted on.
     pub passed_unseen_fragment: u64,
@@ -509,7 +510,7 @@ fn screen_select(
     let (mut scored, mut no_path, mut non_finite, mut ordinal) = (0u64, 0u64, 0u64, 0u64);
     if opts.progress != Progress::Quiet {
         eprintln!(
-            "screen: fast tier over {admitted} admitted tuples, keeping the best {keep} by log10 k_TADF"
+            "screen: fast tier over {admitted} admitted tuples, keeping the best {keep} by screen score (log10 k_TADF)"
         );
     }
     en.for_each(|e| {
@@ -518,7 +519,7 @@ fn screen_select(
         };
         let o = ordinal;
         ordinal += 1;
-        match bound.merit(&set, &t) {
+        match bound.score(&set, &t) {
             None => no_path += 1,
             // A prediction outside the model's range (S1 ≤ 0 gives no logarithm) is never
             // passed: NaN would otherwise order above every number.

@@ -3,6 +3,8 @@
 
 use nalgebra::{DMatrix, DVector};
 
+use super::model::ScreenFit;
+
 /// Ridge regression: minimise ‖Xw − y‖² + α‖w‖² with the first column (the constant) not
 /// penalised; columns are standardised before the penalty is applied so α means the same for
 /// every descriptor. Returns weights in the original units. `rows` are descriptor vectors.
@@ -116,23 +118,126 @@ pub struct Sample {
 }
 
 impl Sample {
-    fn targets(&self) -> [f64; 3] {
+    /// The π tier's log10 k_TADF of this tuple (`photophysics::log10_tadf_rate`).
+    pub fn merit(&self, refractive_index: f64, temperature_k: f64) -> f64 {
+        crate::photophysics::log10_tadf_rate(
+            self.s1_ev,
+            self.delta_est_ev,
+            self.f_s1,
+            refractive_index,
+            temperature_k,
+        )
+    }
+
+    fn targets(&self, screen: &ScreenFit) -> [f64; 4] {
         use super::model::{DEST_OFFSET_EV, F_FLOOR};
         [
             self.s1_ev,
             (self.delta_est_ev.max(0.0) + DEST_OFFSET_EV).log10(),
             (self.f_s1.max(0.0) + F_FLOOR).log10(),
+            self.merit(screen.refractive_index, screen.temperature_k)
+                .max(screen.floor),
         ]
     }
 }
 
+/// The screen score's target settings for a fit: log10 k_TADF at `temperature_k` and
+/// `refractive_index`, floored at the `floor_quantile` quantile of every sample's (dimers
+/// included: the floor is a point of the library's distribution).
+pub fn screen_fit(
+    samples: &[Sample],
+    floor_quantile: f64,
+    refractive_index: f64,
+    temperature_k: f64,
+) -> ScreenFit {
+    let mut m: Vec<f64> = samples
+        .iter()
+        .map(|s| s.merit(refractive_index, temperature_k))
+        .filter(|v| v.is_finite())
+        .collect();
+    m.sort_by(f64::total_cmp);
+    let floor = if m.is_empty() {
+        f64::NEG_INFINITY
+    } else {
+        let k = ((m.len() - 1) as f64 * floor_quantile.clamp(0.0, 1.0)).round() as usize;
+        m[k]
+    };
+    ScreenFit {
+        floor_quantile,
+        floor,
+        temperature_k,
+        refractive_index,
+    }
+}
+
+/// Cross-validated choice of the screen score's floor: for each quantile of `grid`, the mean
+/// over `folds` folds (sample index mod `folds`) of the fraction of each held-out fold's best
+/// `top_fraction` (by the π tier's log10 k_TADF) kept when passing `pass_fraction` of it by the
+/// score fitted on the other folds. Returns (quantile, mean retention) per grid point.
+#[allow(clippy::too_many_arguments)]
+pub fn cross_validate_floor(
+    samples: &[Sample],
+    ids: &[String],
+    cards: &super::CardSet,
+    alpha: f64,
+    grid: &[f64],
+    folds: usize,
+    top_fraction: f64,
+    pass_fraction: f64,
+    refractive_index: f64,
+    temperature_k: f64,
+) -> Vec<(f64, f64)> {
+    grid.iter()
+        .map(|&q| {
+            let mut sum = 0.0;
+            let mut n = 0;
+            for k in 0..folds {
+                let in_fold = |i: &usize| i % folds == k;
+                let train: Vec<Sample> = (0..samples.len())
+                    .filter(|i| !in_fold(i))
+                    .map(|i| samples[i].clone())
+                    .collect();
+                let test: Vec<&Sample> = (0..samples.len())
+                    .filter(in_fold)
+                    .map(|i| &samples[i])
+                    .collect();
+                let sf = screen_fit(&train, q, refractive_index, temperature_k);
+                let Some(m) = fit_model(&train, ids, alpha, sf) else {
+                    continue;
+                };
+                let bound = m.bind(cards, refractive_index, temperature_k);
+                let truth: Vec<f64> = test
+                    .iter()
+                    .map(|s| -s.merit(refractive_index, temperature_k))
+                    .collect();
+                let score: Vec<f64> = test
+                    .iter()
+                    .map(|s| -bound.score_descriptors(&s.x, &s.summary).0)
+                    .collect();
+                let len = test.len();
+                let top = ((len as f64 * top_fraction).round() as usize).max(1);
+                let passed = (len as f64 * pass_fraction).round() as usize;
+                sum += top_k_retention(&truth, &score, top, passed);
+                n += 1;
+            }
+            (q, sum / n.max(1) as f64)
+        })
+        .collect()
+}
+
 /// Fit the fast model by ridge regression with penalty `alpha` on standardised columns, one
-/// fit per target over every sample that is not a plain dimer (those take the pair table's
+/// fit per target (the fourth the screen score of `screen`) over every sample that is not a
+/// plain dimer (those take the pair table's
 /// values): a shared constant, an indicator of the several-direct-arms class, the descriptors
 /// once per class, per-bridge slopes and per-slot fragment indicators. `ids` are the library's
 /// fragment ids by index; only fragments seen in a slot get a term for it. The fit record is
 /// left for the caller to fill from held-out data.
-pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super::FastModel> {
+pub fn fit_model(
+    samples: &[Sample],
+    ids: &[String],
+    alpha: f64,
+    screen: ScreenFit,
+) -> Option<super::FastModel> {
     use super::TupleClass;
     use super::features::BRIDGE_SLOPE_FEATURES;
     use super::model::{Coefficients, FastModel, FitRecord};
@@ -191,8 +296,8 @@ pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super
         })
         .collect();
     let mut w = Vec::new();
-    for k in 0..3 {
-        let y: Vec<f64> = samples.iter().map(|s| s.targets()[k]).collect();
+    for k in 0..4 {
+        let y: Vec<f64> = samples.iter().map(|s| s.targets(&screen)[k]).collect();
         w.push(ridge(&rows, &y, alpha)?);
     }
     let mut terms: [std::collections::BTreeMap<String, super::model::Terms>; 3] =
@@ -200,12 +305,12 @@ pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super
     for (c, &(slot, f)) in cols.iter().enumerate() {
         terms[slot].insert(
             ids[f].clone(),
-            [w[0][o_f + c], w[1][o_f + c], w[2][o_f + c]],
+            [w[0][o_f + c], w[1][o_f + c], w[2][o_f + c], w[3][o_f + c]],
         );
     }
     let mut bridge_slopes = std::collections::BTreeMap::new();
     for (k, &b) in bridges.iter().enumerate() {
-        let mut sl = [[0.0; 3]; 3];
+        let mut sl = [[0.0; 3]; 4];
         for (t, row) in sl.iter_mut().enumerate() {
             for (j, v) in row.iter_mut().enumerate() {
                 *v = w[t][o_s + nb * k + j];
@@ -223,6 +328,7 @@ pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super
             s1_ev: one(0),
             log10_delta_est: one(1),
             log10_f: one(2),
+            screen: one(3),
         }
     };
     let [donor_terms, acceptor_terms, bridge_terms] = terms;
@@ -234,6 +340,7 @@ pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super
         donor_terms,
         acceptor_terms,
         bridge_terms,
+        screen,
         fit: FitRecord {
             fixture: String::new(),
             split: String::new(),
@@ -246,9 +353,10 @@ pub fn fit_model(samples: &[Sample], ids: &[String], alpha: f64) -> Option<super
 
 /// How a bound model does on held-out samples (`x` descriptors already in each sample; the
 /// tuple-level prediction is recomputed from them and the fragment slots). The merit is
-/// log10 k_TADF; `top100_kept_at_10pct` is the fraction of the π tier's 100 best by it that the
-/// fast tier keeps when passing 10 %, `pass_fraction_for_95pct` the smallest pass fraction
-/// (in steps of 1 %) that keeps 95 %.
+/// log10 k_TADF (the fast tier's composed from its S1, ΔEST and f); the cascade orders by the
+/// screen score; `top100_kept_at_10pct` is the fraction of the π tier's 100 best by log10
+/// k_TADF that the cascade keeps when passing 10 % by the score, `pass_fraction_for_95pct` the
+/// smallest pass fraction (in steps of 1 %) that keeps 95 %.
 #[derive(Debug, Clone, Copy, PartialEq, Default, serde::Serialize, serde::Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Evaluation {
@@ -258,6 +366,7 @@ pub struct Evaluation {
     pub spearman_delta_est: f64,
     pub spearman_f: f64,
     pub spearman_merit: f64,
+    pub spearman_score: f64,
     pub mae_s1_ev: f64,
     pub mae_t1_ev: f64,
     pub mae_delta_est_ev: f64,
@@ -288,6 +397,11 @@ pub fn evaluate(samples: &[Sample], model: &super::BoundModel) -> Evaluation {
     let pf = col(&|i| p[i].2);
     let tm = col(&|i| -log10_tadf_rate(ts1[i], td[i], tf[i], n, t_k));
     let pm = col(&|i| -log10_tadf_rate(ps1[i], pd[i], pf[i], n, t_k));
+    let sc = col(&|i| {
+        -model
+            .score_descriptors(&samples[i].x, &samples[i].summary)
+            .0
+    });
     let mae = |a: &[f64], b: &[f64]| {
         a.iter().zip(b).map(|(x, y)| (x - y).abs()).sum::<f64>() / a.len().max(1) as f64
     };
@@ -295,7 +409,7 @@ pub fn evaluate(samples: &[Sample], model: &super::BoundModel) -> Evaluation {
     let mut pass95 = 1.0;
     for pct in 1..=100 {
         let passed = (len * pct).div_ceil(100);
-        if top_k_retention(&tm, &pm, 100, passed) >= 0.95 {
+        if top_k_retention(&tm, &sc, 100, passed) >= 0.95 {
             pass95 = pct as f64 / 100.0;
             break;
         }
@@ -307,10 +421,11 @@ pub fn evaluate(samples: &[Sample], model: &super::BoundModel) -> Evaluation {
         spearman_delta_est: spearman(&td, &pd),
         spearman_f: spearman(&tf, &pf),
         spearman_merit: spearman(&tm, &pm),
+        spearman_score: spearman(&tm, &sc),
         mae_s1_ev: mae(&ts1, &ps1),
         mae_t1_ev: mae(&tt1, &pt1),
         mae_delta_est_ev: mae(&td, &pd),
-        top100_kept_at_10pct: top_k_retention(&tm, &pm, 100, len / 10),
+        top100_kept_at_10pct: top_k_retention(&tm, &sc, 100, len / 10),
         pass_fraction_for_95pct: pass95,
     }
 }

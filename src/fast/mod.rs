@@ -26,4 +26,4 @@ pub mod pairs;
 
 pub use cards::{CardSet, FragmentCard, fragment_card, reference_profile};
 pub use features::{FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe};
-pub use model::{BoundModel, FastEstimate, FastModel};
+pub use model::{BoundModel, FastEstimate, FastModel, ScreenFit};

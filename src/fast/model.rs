@@ -9,13 +9,23 @@
 //! log10(f + 10⁻⁴), all torsion-averaged π-tier values; T1 is S1 − ΔEST so the three never
 //! contradict. Fitted by `examples/fit_fast_tier.rs`, stored in `data/fast-tier.toml` with the
 //! fit's held-out figures. A fragment the fit never saw gets no term (and the estimate says so).
+//!
+//! The cascade orders tuples by a fourth prediction of the same form, the **screen score**: the
+//! π tier's log10 k_TADF floored at a quantile of the fitting sample (`[screen]` in the model
+//! file), fitted directly. A screen only has to order the upper tail; below the floor every tuple
+//! is equally rejected, so the fit spends nothing on ordering the bottom of the library (a
+//! censored target; the quantile is chosen by cross-validation on the fitting rows). D–A tuples
+//! score with their dimer's exact log10 k_TADF. The score is fitted at one temperature; a
+//! workflow at another temperature orders by the merit composed from S1, ΔEST and f instead.
 
 use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
 use super::cards::CardSet;
-use super::features::{BRIDGE_SLOPE_FEATURES, FEATURE_NAMES, N_FEATURES, TupleClass, describe};
+use super::features::{
+    BRIDGE_SLOPE_FEATURES, FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe,
+};
 use crate::combine::Tuple;
 
 /// The shipped model.
@@ -28,12 +38,12 @@ pub const F_FLOOR: f64 = crate::photophysics::F_DARK_FLOOR;
 /// choice of this tool, a fifth of k_BT at 300 K).
 pub const DEST_OFFSET_EV: f64 = 0.005;
 /// Quantities the model predicts, in coefficient order.
-pub const TARGETS: [&str; 3] = ["s1_ev", "log10_delta_est", "log10_f"];
+pub const TARGETS: [&str; 4] = ["s1_ev", "log10_delta_est", "log10_f", "screen"];
 
 /// Per-fragment additive terms, one value per target.
-pub type Terms = [f64; 3];
+pub type Terms = [f64; 4];
 /// Per-bridge slopes: `[target][k]` multiplies descriptor `BRIDGE_SLOPE_FEATURES[k]`.
-pub type Slopes = [[f64; 3]; 3];
+pub type Slopes = [[f64; 3]; 4];
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -41,6 +51,19 @@ pub struct Coefficients {
     pub s1_ev: Vec<f64>,
     pub log10_delta_est: Vec<f64>,
     pub log10_f: Vec<f64>,
+    /// The screen score (log10 k_TADF floored, see [`ScreenFit`]).
+    pub screen: Vec<f64>,
+}
+
+/// What the screen score was fitted to: the π tier's log10 k_TADF (s⁻¹) at this temperature and
+/// refractive index, floored at the `floor_quantile` quantile of the fitting sample (`floor`).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ScreenFit {
+    pub floor_quantile: f64,
+    pub floor: f64,
+    pub temperature_k: f64,
+    pub refractive_index: f64,
 }
 
 /// How the model was fitted and how it did on tuples it was not fitted on.
@@ -69,6 +92,7 @@ pub struct FastModel {
     pub donor_terms: BTreeMap<String, Terms>,
     pub acceptor_terms: BTreeMap<String, Terms>,
     pub bridge_terms: BTreeMap<String, Terms>,
+    pub screen: ScreenFit,
     pub fit: FitRecord,
 }
 
@@ -79,9 +103,12 @@ pub struct FastEstimate {
     pub t1_ev: f64,
     pub delta_est_ev: f64,
     pub f_s1: f64,
-    /// log10 k_TADF (s⁻¹) from these values (`photophysics::log10_tadf_rate`): the cascade's
-    /// ordering key, larger is better.
+    /// log10 k_TADF (s⁻¹) from these values (`photophysics::log10_tadf_rate`).
     pub merit: f64,
+    /// The cascade's ordering key, larger is better: the screen score (log10 k_TADF floored,
+    /// fitted directly; a D–A tuple's exact log10 k_TADF), or `merit` when the model is bound
+    /// at a temperature other than the score's.
+    pub score: f64,
     /// Best donor–acceptor path: orbital gap, ⟨cos²θ⟩ coupling, mixing and donor-side twist.
     pub gap_ev: f64,
     pub coupling: f64,
@@ -95,7 +122,7 @@ pub struct FastEstimate {
 #[derive(Debug, Clone)]
 pub struct BoundModel {
     /// `[class][target]`: class 0 bridged, 1 several direct arms.
-    w: [[[f64; N_FEATURES]; 3]; 2],
+    w: [[[f64; N_FEATURES]; 4]; 2],
     slopes: Vec<Option<Slopes>>,
     /// Per library index: Some(terms) when fitted.
     donor: Vec<Option<Terms>>,
@@ -109,6 +136,9 @@ pub struct BoundModel {
     merit_per_ev: f64,
     /// log10 of the f floor (a libm call kept out of the hot path).
     log10_f_floor: f64,
+    /// Added to the screen score for the bound refractive index (k_r ∝ n², the same shift for
+    /// every tuple); None when bound at a temperature other than the score's.
+    screen_shift: Option<f64>,
 }
 
 impl FastModel {
@@ -119,6 +149,7 @@ impl FastModel {
                 ("s1_ev", &c.s1_ev),
                 ("log10_delta_est", &c.log10_delta_est),
                 ("log10_f", &c.log10_f),
+                ("screen", &c.screen),
             ] {
                 if v.len() != N_FEATURES {
                     return Err(format!(
@@ -144,7 +175,18 @@ impl FastModel {
             cards.cards.iter().map(|c| m.get(&c.id).copied()).collect()
         };
         let arr = |v: &[f64]| -> [f64; N_FEATURES] { v.try_into().expect("length checked") };
-        let block = |c: &Coefficients| [arr(&c.s1_ev), arr(&c.log10_delta_est), arr(&c.log10_f)];
+        let block = |c: &Coefficients| {
+            [
+                arr(&c.s1_ev),
+                arr(&c.log10_delta_est),
+                arr(&c.log10_f),
+                arr(&c.screen),
+            ]
+        };
+        let merit_const = |n: f64| {
+            // k_r at 1 eV with f = 1 (Einstein A, photophysics::radiative_rate), over 3.
+            (crate::photophysics::radiative_rate(1.0, 1.0, n) / 3.0).log10()
+        };
         BoundModel {
             w: [block(&self.bridged), block(&self.multi_arm)],
             slopes: cards
@@ -157,12 +199,13 @@ impl FastModel {
             bridge: look(&self.bridge_terms),
             refractive_index,
             temperature_k,
-            // k_r at 1 eV with f = 1 (Einstein A, photophysics::radiative_rate), over 3.
-            merit_const: (crate::photophysics::radiative_rate(1.0, 1.0, refractive_index) / 3.0)
-                .log10(),
+            merit_const: merit_const(refractive_index),
             merit_per_ev: 1.0
                 / (crate::photophysics::K_B_EV * temperature_k * std::f64::consts::LN_10),
             log10_f_floor: F_FLOOR.log10(),
+            // Within 0.01 K: the temperature a workflow names, not a computed one.
+            screen_shift: ((temperature_k - self.screen.temperature_k).abs() < 0.01)
+                .then(|| merit_const(refractive_index) - merit_const(self.screen.refractive_index)),
         }
     }
 }
@@ -186,59 +229,70 @@ fn dot(w: &[f64; N_FEATURES], x: &[f64; N_FEATURES]) -> f64 {
 }
 
 impl BoundModel {
-    /// The cascade's ordering key alone (log10 k_TADF, equal to [`Self::predict`]'s `merit`)
-    /// and whether a fragment was outside the fit: the screen's fast path.
+    /// The cascade's ordering key alone (equal to [`Self::predict`]'s `score`) and whether a
+    /// fragment was outside the fit: the screen's fast path.
     #[inline]
-    pub fn merit(&self, cards: &CardSet, t: &Tuple) -> Option<(f64, bool)> {
+    pub fn score(&self, cards: &CardSet, t: &Tuple) -> Option<(f64, bool)> {
         let mut x = [0.0; N_FEATURES];
         let s = describe(cards, t, &mut x)?;
+        Some(self.score_descriptors(&x, &s))
+    }
+
+    /// The ordering key from a tuple's descriptors and summary (see [`Self::score`]).
+    #[inline]
+    pub fn score_descriptors(&self, x: &[f64; N_FEATURES], s: &TupleSummary) -> (f64, bool) {
         if s.class == TupleClass::Dimer {
             let e = &s.dimer;
-            return Some((
+            return (
                 self.merit_const + e.log10_s1sq_f - e.v.delta_est_ev.max(0.0) * self.merit_per_ev,
                 false,
-            ));
+            );
         }
-        let (y, unseen) = self.raw(&x, s.class, s.donor, s.acceptor, s.bridge);
+        if let Some(shift) = self.screen_shift {
+            let (y, unseen) = self.raw::<1>(x, s, 3);
+            return (y[0] + shift, unseen);
+        }
+        let (y, unseen) = self.raw::<3>(x, s, 0);
         let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);
-        Some((
+        (
             // log10(f + floor) with f clamped at zero, as in predict().
             self.merit_const + 2.0 * y[0].log10() + y[2].max(self.log10_f_floor)
                 - d * self.merit_per_ev,
             unseen,
-        ))
+        )
     }
 
-    /// The three linear predictions (S1, log10(ΔEST + offset), log10(f + floor)) of a fitted
-    /// class (bridged or several direct arms).
+    /// `K` consecutive linear predictions of a fitted class (bridged or several direct arms),
+    /// targets `first..first + K` of [`TARGETS`].
     #[inline]
-    fn raw(
+    fn raw<const K: usize>(
         &self,
         x: &[f64; N_FEATURES],
-        class: TupleClass,
-        donor: usize,
-        acceptor: usize,
-        bridge: Option<usize>,
-    ) -> ([f64; 3], bool) {
-        let w = &self.w[usize::from(class != TupleClass::Bridged)];
-        let mut y = [dot(&w[0], x), dot(&w[1], x), dot(&w[2], x)];
+        s: &TupleSummary,
+        first: usize,
+    ) -> ([f64; K], bool) {
+        let w = &self.w[usize::from(s.class != TupleClass::Bridged)];
+        let mut y = [0.0; K];
+        for (k, yk) in y.iter_mut().enumerate() {
+            *yk = dot(&w[first + k], x);
+        }
         let mut unseen = false;
         let mut add = |terms: Option<Terms>| match terms {
             Some(v) => {
-                for k in 0..3 {
-                    y[k] += v[k];
+                for (k, yk) in y.iter_mut().enumerate() {
+                    *yk += v[first + k];
                 }
             }
             None => unseen = true,
         };
-        add(self.donor[donor]);
-        add(self.acceptor[acceptor]);
-        if let Some(b) = bridge {
+        add(self.donor[s.donor]);
+        add(self.acceptor[s.acceptor]);
+        if let Some(b) = s.bridge {
             add(self.bridge[b]);
             if let Some(sl) = self.slopes[b] {
                 for (k, yk) in y.iter_mut().enumerate() {
                     for (j, &f) in BRIDGE_SLOPE_FEATURES.iter().enumerate() {
-                        *yk += sl[k][j] * x[f];
+                        *yk += sl[first + k][j] * x[f];
                     }
                 }
             }
@@ -251,13 +305,13 @@ impl BoundModel {
     pub fn predict_descriptors(
         &self,
         x: &[f64; N_FEATURES],
-        s: &super::TupleSummary,
+        s: &TupleSummary,
     ) -> (f64, f64, f64, bool) {
         if s.class == TupleClass::Dimer {
             let v = &s.dimer.v;
             return (v.s1_ev, v.delta_est_ev.max(0.0), v.f_s1.max(0.0), false);
         }
-        let (y, unseen) = self.raw(x, s.class, s.donor, s.acceptor, s.bridge);
+        let (y, unseen) = self.raw::<3>(x, s, 0);
         let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);
         let f = ((y[2] * std::f64::consts::LN_10).exp() - F_FLOOR).max(0.0);
         (y[0], d, f, unseen)
@@ -269,6 +323,7 @@ impl BoundModel {
         let mut x = [0.0; N_FEATURES];
         let s = describe(cards, t, &mut x)?;
         let (s1, d, f, unseen) = self.predict_descriptors(&x, &s);
+        let (score, _) = self.score_descriptors(&x, &s);
         Some(FastEstimate {
             s1_ev: s1,
             t1_ev: s1 - d,
@@ -281,6 +336,7 @@ impl BoundModel {
                 self.refractive_index,
                 self.temperature_k,
             ),
+            score,
             gap_ev: s.gap_ev,
             coupling: s.coupling,
             mixing: s.mixing,

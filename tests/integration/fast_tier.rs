@@ -5,7 +5,7 @@
 use std::ops::ControlFlow;
 
 use lumisift::combine::{EnumerateParams, Enumerator, Tuple, TupleEvent};
-use lumisift::fast::fit::{evaluate, fit_model};
+use lumisift::fast::fit::{evaluate, fit_model, screen_fit};
 use lumisift::fast::pairs::{PairCache, dimer_jobs};
 use lumisift::fast::{CardSet, FastModel, TupleClass};
 use lumisift::model::Architecture;
@@ -36,9 +36,21 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
         "the acceptance check needs ≥ 2,000 held-out candidates, has {}",
         test.len()
     );
-    // Refit: the same coefficients (ridge has one solution).
+    // Refit: the same floor and coefficients (ridge has one solution).
     let ids: Vec<String> = lib.fragments.iter().map(|f| f.id.clone()).collect();
-    let refit = fit_model(&fit, &ids, shipped.fit.ridge_alpha).expect("fit");
+    let sf = screen_fit(
+        &fit,
+        shipped.screen.floor_quantile,
+        shipped.screen.refractive_index,
+        shipped.screen.temperature_k,
+    );
+    assert!(
+        (sf.floor - shipped.screen.floor).abs() < 1e-9,
+        "screen floor {} vs {}: refit",
+        sf.floor,
+        shipped.screen.floor
+    );
+    let refit = fit_model(&fit, &ids, shipped.fit.ridge_alpha, sf).expect("fit");
     let close = |a: &[f64], b: &[f64]| {
         assert_eq!(a.len(), b.len());
         for (x, y) in a.iter().zip(b.iter()) {
@@ -52,6 +64,7 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
         close(&r.s1_ev, &s.s1_ev);
         close(&r.log10_delta_est, &s.log10_delta_est);
         close(&r.log10_f, &s.log10_f);
+        close(&r.screen, &s.screen);
     }
     assert_eq!(refit.donor_terms.len(), shipped.donor_terms.len());
     assert_eq!(
@@ -75,6 +88,7 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
         ),
         ("spearman_f", r.spearman_f, ev.spearman_f),
         ("spearman_merit", r.spearman_merit, ev.spearman_merit),
+        ("spearman_score", r.spearman_score, ev.spearman_score),
         ("mae_s1_ev", r.mae_s1_ev, ev.mae_s1_ev),
         ("mae_t1_ev", r.mae_t1_ev, ev.mae_t1_ev),
         ("mae_delta_est_ev", r.mae_delta_est_ev, ev.mae_delta_est_ev),
@@ -335,7 +349,7 @@ pass_fraction = 0.05
     en.for_each(|e| {
         if let TupleEvent::Admitted(t) = e {
             if let Some(fe) = bound.predict(set, &t) {
-                all.push((fe.merit, ord, t.key(lib)));
+                all.push((fe.score, ord, t.key(lib)));
             }
             ord += 1;
         }
@@ -396,14 +410,24 @@ fn screen_settings_are_checked() {
     assert!(e.contains("pass_fraction"), "{e}");
 }
 
-/// The screen's fast path (the merit rewritten in logarithms, no f or ΔEST formed) gives the
-/// same merit as the full prediction (`photophysics::log10_tadf_rate` of the predicted S1,
-/// ΔEST and f), at a refractive index and temperature other than the defaults.
+/// The screen's fast path gives the full prediction's ordering key: at the score's own
+/// temperature the screen score (shifted by the refractive index's log10 n² alone), at another
+/// temperature the merit rewritten in logarithms (no f or ΔEST formed), equal to
+/// `photophysics::log10_tadf_rate` of the predicted S1, ΔEST and f.
 #[test]
-fn the_fast_merit_equals_the_full_prediction() {
+fn the_fast_score_equals_the_full_prediction() {
     let lib = fasttier::library();
     let set = fasttier::cards();
-    let bound = FastModel::default_model().bind(set, 1.8, 320.0);
+    let model = FastModel::default_model();
+    let at_fit = model.bind(
+        set,
+        model.screen.refractive_index,
+        model.screen.temperature_k,
+    );
+    let denser = model.bind(set, 1.8, model.screen.temperature_k);
+    let warmer = model.bind(set, 1.8, 320.0);
+    // k_r ∝ n² (Strickler–Berg / Einstein A): every score moves by 2·log10(1.8/n_fit).
+    let shift = 2.0 * (1.8 / model.screen.refractive_index).log10();
     let params = EnumerateParams {
         architectures: Architecture::ALL.to_vec(),
         max_mol_weight: 800.0,
@@ -415,10 +439,16 @@ fn the_fast_merit_equals_the_full_prediction() {
         if let TupleEvent::Admitted(t) = e {
             n += 1;
             if n % 11 == 0 {
-                let full = bound.predict(set, &t).unwrap();
-                let (m, unseen) = bound.merit(set, &t).unwrap();
+                let full = warmer.predict(set, &t).unwrap();
+                let (m, unseen) = warmer.score(set, &t).unwrap();
                 assert!((m - full.merit).abs() < 1e-9, "{m} vs {}", full.merit);
+                assert_eq!(full.score, m);
                 assert_eq!(unseen, full.unseen_fragment);
+                let fit = at_fit.predict(set, &t).unwrap();
+                let (s, _) = at_fit.score(set, &t).unwrap();
+                assert_eq!(fit.score, s);
+                let (d, _) = denser.score(set, &t).unwrap();
+                assert!((d - s - shift).abs() < 1e-9, "{d} vs {s} + {shift}");
             }
         }
         ControlFlow::Continue(())
