@@ -18,7 +18,7 @@ use lumisift::fast::fit::{cross_validate_floor, evaluate, fit_model, screen_fit}
 
 const ALPHA: f64 = 1.0;
 /// Candidate floors of the screen score (quantiles of the fitting rows' log10 k_TADF).
-const FLOOR_GRID: [f64; 8] = [0.0, 0.5, 0.6, 0.7, 0.75, 0.8, 0.85, 0.9];
+const FLOOR_GRID: [f64; 11] = [0.0, 0.5, 0.6, 0.7, 0.75, 0.8, 0.85, 0.88, 0.9, 0.92, 0.94];
 /// Cross-validation: folds, and the fold's best 5 % kept when passing 10 % (the cascade's
 /// question on the held-out rows, top 100 of about 2,000, scaled to a fold).
 const CV_FOLDS: usize = 5;

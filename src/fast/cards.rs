@@ -224,6 +224,29 @@ pub struct PairTwist {
     /// The two sites' dimer in the card set's pair table (`PairTable::entries`; 0 = none):
     /// kept beside the twist so an arm's link gives both in one look-up.
     pub dimer: u32,
+    /// First-order mixing across the link ([`link_mixing`]): hole (HOMO with HOMO) and
+    /// electron (LUMO with LUMO); symmetric in the two sites, tabulated so the hot path takes
+    /// no division.
+    pub mix_homo: f32,
+    pub mix_lumo: f32,
+}
+
+/// First-order mixing across a link between fragments `x` and `y` at ⟨cos²θ⟩^½ = `rms_cos`:
+/// hole delocalisation (HOMO with HOMO) and electron delocalisation (LUMO with LUMO), each
+/// β·√⟨cos²θ⟩·|c_x|·|c_y|/|Δε| with the anchor coefficients `c` and the fragments' orbital
+/// energies `ε` (denominator at least [`super::features::MIN_DENOMINATOR_EV`]).
+pub fn link_mixing(
+    (homo_x, lumo_x, ch_x, cl_x): (f64, f64, f64, f64),
+    (homo_y, lumo_y, ch_y, cl_y): (f64, f64, f64, f64),
+    rms_cos: f64,
+) -> (f64, f64) {
+    use super::features::{BETA_SCALE_EV, MIN_DENOMINATOR_EV};
+    let dh = (homo_x - homo_y).abs().max(MIN_DENOMINATOR_EV);
+    let dl = (lumo_x - lumo_y).abs().max(MIN_DENOMINATOR_EV);
+    (
+        BETA_SCALE_EV * rms_cos * ch_x * ch_y / dh,
+        BETA_SCALE_EV * rms_cos * cl_x * cl_y / dl,
+    )
 }
 
 /// The additive pair model (module docs) for sites `x` and `y` (None = probe-like).
@@ -255,6 +278,8 @@ pub fn pair_twist(
         cos2: cos2 as f32,
         rms_cos: cos2.sqrt() as f32,
         dimer: 0,
+        mix_homo: 0.0,
+        mix_lumo: 0.0,
     }
 }
 
@@ -338,6 +363,21 @@ impl CardSet {
         }
         let n = all.len();
         assert_eq!(pair_table.n_sites, n, "pair table numbered like the cards");
+        let site_homo: Vec<f64> = cards
+            .iter()
+            .flat_map(|c| c.anchor_homo2.iter().map(|x| x.sqrt()))
+            .collect();
+        let site_lumo: Vec<f64> = cards
+            .iter()
+            .flat_map(|c| c.anchor_lumo2.iter().map(|x| x.sqrt()))
+            .collect();
+        // Per site: its fragment's orbital energies and the anchor coefficients.
+        let site_orbitals: Vec<(f64, f64, f64, f64)> = cards
+            .iter()
+            .flat_map(|c| std::iter::repeat_n((c.homo_ev, c.lumo_ev), c.sites.len()))
+            .zip(site_homo.iter().zip(&site_lumo))
+            .map(|((h, l), (&ch, &cl))| (h, l, ch, cl))
+            .collect();
         let mut pairs: Vec<PairTwist> = Vec::with_capacity(n * n);
         for i in 0..n {
             for j in 0..n {
@@ -347,18 +387,12 @@ impl CardSet {
                     let mut p = pair_twist(all[i], all[j], reference, tp);
                     // At most one order of a site pair has a dimer (donor side first).
                     p.dimer = pair_table.index[i * n + j].max(pair_table.index[j * n + i]);
+                    let (h, l) = link_mixing(site_orbitals[i], site_orbitals[j], p.rms_cos as f64);
+                    (p.mix_homo, p.mix_lumo) = (h as f32, l as f32);
                     p
                 });
             }
         }
-        let site_homo = cards
-            .iter()
-            .flat_map(|c| c.anchor_homo2.iter().map(|x| x.sqrt()))
-            .collect();
-        let site_lumo = cards
-            .iter()
-            .flat_map(|c| c.anchor_lumo2.iter().map(|x| x.sqrt()))
-            .collect();
         let pair_fallback = pair_table.mean_entry();
         CardSet {
             cards,

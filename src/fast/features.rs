@@ -103,23 +103,6 @@ const LN_SMALL: [f64; 7] = [
     1.791_759_469_228_055,
 ];
 
-/// One side of a link: fragment index and site index.
-type End = (usize, usize);
-
-/// First-order mixing across one link between `x` and `y` (donor side first): hole
-/// delocalisation (HOMO with HOMO) plus electron delocalisation (LUMO with LUMO), each
-/// β·√⟨cos²θ⟩·|c_x|·|c_y|/|Δε|.
-#[inline]
-fn link_mixing(cards: &CardSet, x: End, y: End, rms_cos: f64) -> (f64, f64) {
-    let (cx, cy) = (&cards.cards[x.0], &cards.cards[y.0]);
-    let (sx, sy) = (cards.site_offset[x.0] + x.1, cards.site_offset[y.0] + y.1);
-    let dh = (cx.homo_ev - cy.homo_ev).abs().max(MIN_DENOMINATOR_EV);
-    let dl = (cx.lumo_ev - cy.lumo_ev).abs().max(MIN_DENOMINATOR_EV);
-    let h = BETA_SCALE_EV * rms_cos * cards.site_homo[sx] * cards.site_homo[sy] / dh;
-    let l = BETA_SCALE_EV * rms_cos * cards.site_lumo[sx] * cards.site_lumo[sy] / dl;
-    (h, l)
-}
-
 /// One donor–acceptor path.
 #[derive(Clone, Copy)]
 struct Path {
@@ -178,7 +161,7 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
                 local(f);
                 let p = cards.pair(t.core, site, f, 0);
                 let c2 = p.cos2 as f64;
-                let (h, l) = link_mixing(cards, (f, 0), (t.core, site), p.rms_cos as f64);
+                let (h, l) = (p.mix_homo as f64, p.mix_lumo as f64);
                 (f, c2, h + l, p.theta_deg as f64, None, Some(p.dimer), None)
             }
             Arm::Bridged {
@@ -195,9 +178,8 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
                 // Hole and electron meet on the bridge (hole leaks onto it across the
                 // terminal's link, electron across the core's) or pass it (products of the
                 // two links' amplitudes of one kind).
-                let (h1, l1) =
-                    link_mixing(cards, (terminal, 0), (bridge, 1 - cs), b.rms_cos as f64);
-                let (h2, l2) = link_mixing(cards, (bridge, cs), (t.core, site), a.rms_cos as f64);
+                let (h1, l1) = (b.mix_homo as f64, b.mix_lumo as f64);
+                let (h2, l2) = (a.mix_homo as f64, a.mix_lumo as f64);
                 let meet = if core_is_donor { l1 * h2 } else { h1 * l2 };
                 (
                     terminal,

@@ -296,10 +296,40 @@ pub fn fit_model(
         })
         .collect();
     let mut w = Vec::new();
-    for k in 0..4 {
+    for k in 0..3 {
         let y: Vec<f64> = samples.iter().map(|s| s.targets(&screen)[k]).collect();
         w.push(ridge(&rows, &y, alpha)?);
     }
+    // The screen score: the same columns plus, per class, every product of two descriptors
+    // (a quadratic form; the cascade's question — which tuples reach the top — turns on how
+    // the dimers' S1, ΔEST and f combine, which a sum of terms cannot say).
+    let o_q = rows.first().map_or(0, Vec::len);
+    let nq = super::model::N_PRODUCTS;
+    let quad: Vec<Vec<f64>> = rows
+        .iter()
+        .zip(&samples)
+        .map(|(r, s)| {
+            let mut q = r.clone();
+            q.resize(o_q + 2 * nq, 0.0);
+            let o = o_q
+                + if s.summary.class == TupleClass::MultiArm {
+                    nq
+                } else {
+                    0
+                };
+            for (k, (i, j)) in super::model::products().enumerate() {
+                q[o + k] = s.x[i] * s.x[j];
+            }
+            q
+        })
+        .collect();
+    let y: Vec<f64> = samples.iter().map(|s| s.targets(&screen)[3]).collect();
+    let wq = ridge(&quad, &y, alpha)?;
+    let products = |multi: bool| {
+        let o = o_q + if multi { nq } else { 0 };
+        wq[o..o + nq].to_vec()
+    };
+    w.push(wq[..o_q].to_vec());
     let mut terms: [std::collections::BTreeMap<String, super::model::Terms>; 3] =
         Default::default();
     for (c, &(slot, f)) in cols.iter().enumerate() {
@@ -329,6 +359,7 @@ pub fn fit_model(
             log10_delta_est: one(1),
             log10_f: one(2),
             screen: one(3),
+            screen_products: products(multi),
         }
     };
     let [donor_terms, acceptor_terms, bridge_terms] = terms;

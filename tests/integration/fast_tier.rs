@@ -65,6 +65,7 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
         close(&r.log10_delta_est, &s.log10_delta_est);
         close(&r.log10_f, &s.log10_f);
         close(&r.screen, &s.screen);
+        close(&r.screen_products, &s.screen_products);
     }
     assert_eq!(refit.donor_terms.len(), shipped.donor_terms.len());
     assert_eq!(
@@ -108,17 +109,19 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
             "{name}: recorded {rec}, now {now}"
         );
     }
-    // Bars of our own (a screen that orders tuples much like the π tier; set just below what
-    // the pair-table model reaches, so losing the pair descriptors fails here): ρ ≥ 0.9 for
-    // S1 and T1, ≥ 0.85 for ΔEST and the merit, and at most half the tuples passed to keep
-    // 95 % of the top 100. The bar — 95 % of the π tier's top 100 kept when passing
-    // 10 % — is reported in the record and DEVELOPERS.md, and not met.
+    // Bars of our own, set just below what the model reaches so that losing the pair
+    // descriptors or the screen score's products fails here: ρ ≥ 0.9 for S1 and T1, ≥ 0.85
+    // for ΔEST and the merit; the screen score keeps ≥ 85 % of the π tier's top 100 when
+    // passing 10 % (the linear score kept 78 %, the composed merit 68 %) and 95 % by a pass
+    // fraction of 20 %. The bar — 95 % kept when passing 10 % — is reported in the
+    // record and DEVELOPERS.md, and not met.
     assert!(ev.spearman_s1 >= 0.9 && ev.spearman_t1 >= 0.9, "{ev:?}");
     assert!(
         ev.spearman_delta_est >= 0.85 && ev.spearman_merit >= 0.85,
         "{ev:?}"
     );
-    assert!(ev.pass_fraction_for_95pct <= 0.4, "{ev:?}");
+    assert!(ev.top100_kept_at_10pct >= 0.85, "{ev:?}");
+    assert!(ev.pass_fraction_for_95pct <= 0.2, "{ev:?}");
 }
 
 /// Fragments used in the pair-table checks: small ones, one of each kind of site orbit (a

@@ -1,7 +1,8 @@
-//! The fast tier's reference data (π-tier results on a seeded sample of the shipped library,
+//! The fast tier's reference data (π-tier results on two seeded samples of the shipped library,
 //! `tests/fixtures/fast_tier/pi_tier.csv`, made by `make_fixture.py` beside it) and its split:
-//! a row whose candidate id starts with a byte below 0x80 is for fitting, the rest for testing,
-//! so one molecule never sits on both sides. Shared by `examples/fit_fast_tier.rs` and the
+//! the rows of sample `a` whose candidate id starts with a byte of 0x80 or above are the test
+//! library; every other row is for fitting unless its molecule is in the test library, so one
+//! molecule never sits on both sides. Shared by `examples/fit_fast_tier.rs` and the
 //! integration test.
 
 #![allow(dead_code)]
@@ -16,7 +17,7 @@ use lumisift::pi::params::PppParams;
 
 /// The fixture, relative to the repository root (as recorded in the model file).
 pub const FIXTURE: &str = "tests/fixtures/fast_tier/pi_tier.csv";
-pub const SPLIT: &str = "candidate id first byte < 0x80: fit; otherwise: test";
+pub const SPLIT: &str = "test: sample a, candidate id first byte >= 0x80; fit: every other row whose molecule is not in the test";
 /// Temperature and refractive index of the merit in the fit record (the workflow defaults).
 pub const T_K: f64 = 300.0;
 pub const N_HOST: f64 = 1.7;
@@ -50,7 +51,8 @@ pub fn samples(lib: &Library, set: &CardSet) -> (Vec<Sample>, Vec<Sample>) {
             .position(|h| h == name)
             .unwrap_or_else(|| panic!("fixture column {name}"))
     };
-    let (key, id, s1, dest, f, error) = (
+    let (sample_col, key, id, s1, dest, f, error) = (
+        col("sample"),
         col("tuple_key"),
         col("candidate_id"),
         col("avg_s1_ev"),
@@ -58,9 +60,17 @@ pub fn samples(lib: &Library, set: &CardSet) -> (Vec<Sample>, Vec<Sample>) {
         col("avg_f_s1"),
         col("error"),
     );
+    let records: Vec<csv::StringRecord> = rdr.records().map(|r| r.expect("fixture row")).collect();
+    let is_test = |r: &csv::StringRecord| {
+        &r[sample_col] == "a" && u8::from_str_radix(&r[id][..2], 16).expect("hex id") >= 0x80
+    };
+    let test_ids: std::collections::HashSet<&str> = records
+        .iter()
+        .filter(|r| is_test(r))
+        .map(|r| r.get(id).expect("id column"))
+        .collect();
     let (mut fit, mut test) = (Vec::new(), Vec::new());
-    for r in rdr.records() {
-        let r = r.expect("fixture row");
+    for r in &records {
         if !r[error].is_empty() {
             continue;
         }
@@ -77,10 +87,10 @@ pub fn samples(lib: &Library, set: &CardSet) -> (Vec<Sample>, Vec<Sample>) {
             delta_est_ev: num(dest),
             f_s1: num(f),
         };
-        if u8::from_str_radix(&r[id][..2], 16).expect("hex id") < 0x80 {
-            fit.push(sample);
-        } else {
+        if is_test(r) {
             test.push(sample);
+        } else if !test_ids.contains(&r[id]) {
+            fit.push(sample);
         }
     }
     (fit, test)
