@@ -292,7 +292,9 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         b.gap,
         b.mixing,
         m2,
-        (m2 + 1e-4).ln(),
+        // Single precision: logf is about twice as fast as log, and the descriptor needs no
+        // more than its seven digits.
+        f64::from(((m2 + 1e-4) as f32).ln()),
         b.gap * m2,
         LN_SMALL
             .get(n_paths)

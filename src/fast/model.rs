@@ -143,9 +143,9 @@ pub struct BoundModel {
     w: [[[f64; N_FEATURES]; 4]; 2],
     /// `[class][i][j]`: the screen score's product coefficients over the product descriptors,
     /// upper triangle (j ≥ i; zero below), so the quadratic part is zᵀQz.
-    /// Single precision: the products' coefficients are below 2 and the descriptors below
-    /// 20 in magnitude, so the sum carries rounding near 10⁻⁵ on a score whose ordering
-    /// matters at 10⁻², and four lanes of a vector register hold twice as many as in f64.
+    /// Single precision: the products' coefficients are of order one and the descriptors
+    /// below 20 in magnitude, so the sum carries rounding near 10⁻⁴ at worst on a score whose
+    /// ordering matters at 10⁻², and a vector register holds twice as many lanes as in f64.
     q: [[[f32; N_PRODUCT_FEATURES]; N_PRODUCT_FEATURES]; 2],
     slopes: Vec<Option<Slopes>>,
     /// Per library index: Some(terms) when fitted.
