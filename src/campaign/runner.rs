@@ -502,7 +502,10 @@ fn screen_select(
         Some(&cache),
     )
     .ok_or_else(|| CampaignError::Other("screen: the phenyl probe scan failed".into()))?;
-    let bound = model.bind(&set, sc.refractive_index, sc.temperature_k);
+    let mut bound = model.bind(&set, sc.refractive_index, sc.temperature_k);
+    if !sc.trees {
+        bound.drop_trees();
+    }
     let cards_s = t0.elapsed().as_secs_f64();
     let t1 = Instant::now();
     let keep = ((admitted as f64 * sc.pass_fraction).ceil() as u64).max(1) as usize;

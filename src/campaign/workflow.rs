@@ -31,6 +31,9 @@
 //! [screen]                          # fast fragment tier (stage "screen", before "enumerate")
 //! pass_fraction = 0.01              # build and estimate only the best 1 % of tuples
 //! # model = "my-fast-tier.toml"     # fitted model (default: the shipped data/fast-tier.toml)
+//! # trees = false                   # order by the screen score without its boosted trees:
+//! #                                 # about 4x faster per tuple, 91 % instead of 95 % of the
+//! #                                 # π tier's top 100 kept at 10 % pass (held-out library)
 //!
 //! [estimate]                        # π-tier estimate of every candidate in the store
 //! temperature_k = 300.0             # Boltzmann distribution over twists
@@ -167,6 +170,12 @@ struct RawScreen {
     pass_fraction: f64,
     #[serde(default)]
     model: Option<PathBuf>,
+    #[serde(default = "default_true")]
+    trees: bool,
+}
+
+fn default_true() -> bool {
+    true
 }
 
 fn default_pass_fraction() -> f64 {
@@ -181,6 +190,10 @@ pub struct ScreenStage {
     pub pass_fraction: f64,
     /// A fitted model file; None = the shipped `data/fast-tier.toml`.
     pub model: Option<PathBuf>,
+    /// Add the screen score's boosted trees (default): on the held-out library 95 % of the
+    /// π tier's top 100 kept at 10 % pass instead of 91 %, at about 2.7 M instead of 10 M
+    /// tuples/s per core (the enumerator, at about 0.3 M/s, bounds the stage either way).
+    pub trees: bool,
     /// Temperature (K) and refractive index of the merit: the estimate stage's values.
     pub temperature_k: f64,
     pub refractive_index: f64,
@@ -523,6 +536,7 @@ impl Workflow {
             let r = raw.screen.clone().unwrap_or(RawScreen {
                 pass_fraction: default_pass_fraction(),
                 model: None,
+                trees: true,
             });
             if !(r.pass_fraction > 0.0 && r.pass_fraction <= 1.0) {
                 return Err(err(format!(
@@ -550,6 +564,7 @@ impl Workflow {
             Some(ScreenStage {
                 pass_fraction: r.pass_fraction,
                 model: r.model.map(|p| resolve(&p)),
+                trees: r.trees,
                 temperature_k: estimate
                     .as_ref()
                     .map_or(rate_defaults.temperature_k, |e| e.temperature_k),

@@ -147,6 +147,7 @@ impl Sample {
 pub fn screen_fit(
     samples: &[Sample],
     floor_quantile: f64,
+    boost: super::trees::BoostParams,
     refractive_index: f64,
     temperature_k: f64,
 ) -> ScreenFit {
@@ -167,28 +168,30 @@ pub fn screen_fit(
         floor,
         temperature_k,
         refractive_index,
+        boost,
     }
 }
 
-/// Cross-validated choice of the screen score's floor: for each quantile of `grid`, the mean
-/// over `folds` folds (sample index mod `folds`) of the fraction of each held-out fold's best
-/// `top_fraction` (by the π tier's log10 k_TADF) kept when passing `pass_fraction` of it by the
-/// score fitted on the other folds. Returns (quantile, mean retention) per grid point.
+/// Cross-validated choice of the screen score's floor and trees: for each (floor quantile,
+/// boosting settings) of `grid`, the mean over `folds` folds (sample index mod `folds`) of the
+/// fraction of each held-out fold's best `top_fraction` (by the π tier's log10 k_TADF) kept
+/// when passing `pass_fraction` of it by the score fitted on the other folds. Returns the mean
+/// retention per grid point.
 #[allow(clippy::too_many_arguments)]
-pub fn cross_validate_floor(
+pub fn cross_validate_screen(
     samples: &[Sample],
     ids: &[String],
     cards: &super::CardSet,
     alpha: f64,
-    grid: &[f64],
+    grid: &[(f64, super::trees::BoostParams)],
     folds: usize,
     top_fraction: f64,
     pass_fraction: f64,
     refractive_index: f64,
     temperature_k: f64,
-) -> Vec<(f64, f64)> {
+) -> Vec<f64> {
     grid.iter()
-        .map(|&q| {
+        .map(|&(q, boost)| {
             let mut sum = 0.0;
             let mut n = 0;
             for k in 0..folds {
@@ -201,7 +204,7 @@ pub fn cross_validate_floor(
                     .filter(in_fold)
                     .map(|i| &samples[i])
                     .collect();
-                let sf = screen_fit(&train, q, refractive_index, temperature_k);
+                let sf = screen_fit(&train, q, boost, refractive_index, temperature_k);
                 let Some(m) = fit_model(&train, ids, alpha, sf) else {
                     continue;
                 };
@@ -220,7 +223,7 @@ pub fn cross_validate_floor(
                 sum += top_k_retention(&truth, &score, top, passed);
                 n += 1;
             }
-            (q, sum / n.max(1) as f64)
+            sum / n.max(1) as f64
         })
         .collect()
 }
@@ -325,6 +328,14 @@ pub fn fit_model(
         .collect();
     let y: Vec<f64> = samples.iter().map(|s| s.targets(&screen)[3]).collect();
     let wq = ridge(&quad, &y, alpha)?;
+    // Boosted trees on what the ridge part leaves (its in-sample prediction as the start).
+    let init: Vec<f64> = quad
+        .iter()
+        .map(|r| r.iter().zip(&wq).map(|(a, b)| a * b).sum())
+        .collect();
+    let xs: Vec<&[f64]> = samples.iter().map(|s| s.x.as_slice()).collect();
+    let allowed: Vec<usize> = (1..super::N_FEATURES).collect();
+    let screen_trees = super::trees::boost(&xs, &y, &init, &allowed, &screen.boost);
     let products = |multi: bool| {
         let o = o_q + if multi { nq } else { 0 };
         wq[o..o + nq].to_vec()
@@ -372,6 +383,7 @@ pub fn fit_model(
         acceptor_terms,
         bridge_terms,
         screen,
+        screen_trees,
         fit: FitRecord {
             fixture: String::new(),
             split: String::new(),

@@ -14,6 +14,7 @@
 //!   descriptors per class (bridged; several direct arms), per-bridge slopes and additive
 //!   fragment terms, fitted to π-tier results by `examples/fit_fast_tier.rs`; coefficients and the fit's held-out figures live in
 //!   `data/fast-tier.toml`. Tuples are ordered by log10 k_TADF from these values.
+//! - [`trees`]: gradient-boosted oblivious regression trees, the screen score's correction.
 //! - [`fit`]: ridge regression, Spearman ρ, top-k retention, the fit and its evaluation.
 //!
 //! It is a screen, not an estimate to report: its numbers only order tuples for the π tier.
@@ -23,6 +24,7 @@ pub mod features;
 pub mod fit;
 pub mod model;
 pub mod pairs;
+pub mod trees;
 
 pub use cards::{CardSet, FragmentCard, fragment_card, reference_profile};
 pub use features::{FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe};

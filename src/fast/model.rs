@@ -10,8 +10,9 @@
 //! contradict. Fitted by `examples/fit_fast_tier.rs`, stored in `data/fast-tier.toml` with the
 //! fit's held-out figures. A fragment the fit never saw gets no term (and the estimate says so).
 //!
-//! The cascade orders tuples by a fourth prediction of the same form, the **screen score**: the
-//! π tier's log10 k_TADF floored at a quantile of the fitting sample (`[screen]` in the model
+//! The cascade orders tuples by a fourth prediction of the same form plus, per class, the
+//! products of the pair-table descriptors (a quadratic form), the **screen score**: the π
+//! tier's log10 k_TADF floored at a quantile of the fitting sample (`[screen]` in the model
 //! file), fitted directly. A screen only has to order the upper tail; below the floor every tuple
 //! is equally rejected, so the fit spends nothing on ordering the bottom of the library (a
 //! censored target; the quantile is chosen by cross-validation on the fitting rows). D–A tuples
@@ -43,8 +44,8 @@ pub const TARGETS: [&str; 4] = ["s1_ev", "log10_delta_est", "log10_f", "screen"]
 /// First of the descriptors whose pairwise products enter the screen score: the pair-table
 /// descriptors (`pair_s1_min_ev` onwards, to the last), the π tier's own numbers for the arms'
 /// dimers, whose combination decides which tuples reach the top. Products of every descriptor
-/// order the held-out top no better (87 % kept at 10 % against 87 %) and cost eight times as
-/// much per tuple.
+/// ordered the held-out top no better (fitted on the first π-tier sample alone: 87 % of the
+/// top 100 kept at 10 % pass either way) and cost eight times as much per tuple.
 pub const PRODUCT_FIRST: usize = 14;
 /// Descriptors in the products.
 pub const N_PRODUCT_FEATURES: usize = N_FEATURES - PRODUCT_FIRST;
@@ -82,6 +83,8 @@ pub struct ScreenFit {
     pub floor: f64,
     pub temperature_k: f64,
     pub refractive_index: f64,
+    /// The boosted trees fitted to the ridge part's residuals (`trees = 0`: none).
+    pub boost: super::trees::BoostParams,
 }
 
 /// How the model was fitted and how it did on tuples it was not fitted on.
@@ -111,6 +114,8 @@ pub struct FastModel {
     pub acceptor_terms: BTreeMap<String, Terms>,
     pub bridge_terms: BTreeMap<String, Terms>,
     pub screen: ScreenFit,
+    /// The screen score's boosted trees (on the descriptors), added to its ridge part.
+    pub screen_trees: Vec<super::trees::Tree>,
     pub fit: FitRecord,
 }
 
@@ -163,6 +168,7 @@ pub struct BoundModel {
     /// Added to the screen score for the bound refractive index (k_r ∝ n², the same shift for
     /// every tuple); None when bound at a temperature other than the score's.
     screen_shift: Option<f64>,
+    trees: Vec<super::trees::Tree>,
 }
 
 impl FastModel {
@@ -182,6 +188,16 @@ impl FastModel {
                     ));
                 }
             }
+        }
+        if let Some(t) = m
+            .screen_trees
+            .iter()
+            .find(|t| t.features.iter().any(|&f| f >= N_FEATURES))
+        {
+            return Err(format!(
+                "screen_trees: descriptor index {:?} out of range",
+                t.features
+            ));
         }
         for (class, c) in [("bridged", &m.bridged), ("multi_arm", &m.multi_arm)] {
             if c.screen_products.len() != N_PRODUCTS {
@@ -246,6 +262,7 @@ impl FastModel {
             // Within 0.01 K: the temperature a workflow names, not a computed one.
             screen_shift: ((temperature_k - self.screen.temperature_k).abs() < 0.01)
                 .then(|| merit_const(refractive_index) - merit_const(self.screen.refractive_index)),
+            trees: self.screen_trees.clone(),
         }
     }
 }
@@ -269,6 +286,12 @@ fn dot<const N: usize>(w: &[f64; N], x: &[f64; N]) -> f64 {
 }
 
 impl BoundModel {
+    /// Order by the screen score's ridge part alone (no boosted trees): about four times
+    /// faster per tuple, a coarser screen (see `data/fast-tier.toml`'s held-out record).
+    pub fn drop_trees(&mut self) {
+        self.trees.clear();
+    }
+
     /// The cascade's ordering key alone (equal to [`Self::predict`]'s `score`) and whether a
     /// fragment was outside the fit: the screen's fast path.
     #[inline]
@@ -304,7 +327,8 @@ impl BoundModel {
                 }
             }
             let quad = f64::from(v.iter().zip(&z).map(|(a, b)| a * b).sum::<f32>());
-            return (y[0] + quad + shift, unseen);
+            let trees = super::trees::predict(&self.trees, x);
+            return (y[0] + quad + trees + shift, unseen);
         }
         let (y, unseen) = self.raw::<3>(x, s, 0);
         let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);

@@ -41,6 +41,7 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
     let sf = screen_fit(
         &fit,
         shipped.screen.floor_quantile,
+        shipped.screen.boost,
         shipped.screen.refractive_index,
         shipped.screen.temperature_k,
     );
@@ -74,6 +75,12 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
     );
     for (k, v) in &refit.bridge_slopes {
         close(v.as_flattened(), shipped.bridge_slopes[k].as_flattened());
+    }
+    assert_eq!(refit.screen_trees.len(), shipped.screen_trees.len());
+    for (r, s) in refit.screen_trees.iter().zip(&shipped.screen_trees) {
+        assert_eq!(r.features, s.features, "tree descriptors: refit");
+        close(&r.thresholds, &s.thresholds);
+        close(&r.leaves, &s.leaves);
     }
     let bound = shipped.bind(set, fasttier::N_HOST, fasttier::T_K);
     let ev = evaluate(&test, &bound);
@@ -109,19 +116,27 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
             "{name}: recorded {rec}, now {now}"
         );
     }
-    // Bars of our own, set just below what the model reaches so that losing the pair
-    // descriptors or the screen score's products fails here: ρ ≥ 0.9 for S1 and T1, ≥ 0.85
-    // for ΔEST and the merit; the screen score keeps ≥ 85 % of the π tier's top 100 when
-    // passing 10 % (the linear score kept 78 %, the composed merit 68 %) and 95 % by a pass
-    // fraction of 20 %. The bar — 95 % kept when passing 10 % — is reported in the
-    // record and DEVELOPERS.md, and not met.
+    // The bar: passing 10 % of the held-out library by the screen score keeps ≥ 95 %
+    // of the π tier's top 100 (by log10 k_TADF). Bars of our own, just below what the model
+    // reaches, so losing the pair descriptors fails here: ρ ≥ 0.9 for S1 and T1, ≥ 0.85 for
+    // ΔEST and the merit.
+    assert!(ev.top100_kept_at_10pct >= 0.95, "{ev:?}");
+    assert!(ev.pass_fraction_for_95pct <= 0.10, "{ev:?}");
     assert!(ev.spearman_s1 >= 0.9 && ev.spearman_t1 >= 0.9, "{ev:?}");
     assert!(
         ev.spearman_delta_est >= 0.85 && ev.spearman_merit >= 0.85,
         "{ev:?}"
     );
-    assert!(ev.top100_kept_at_10pct >= 0.85, "{ev:?}");
-    assert!(ev.pass_fraction_for_95pct <= 0.2, "{ev:?}");
+    // Without its boosted trees (`[screen] trees = false`) the score is coarser but still far
+    // ahead of ordering by the composed merit (68 % on this library): DEVELOPERS.md records 91 %.
+    let mut ridge_only = bound.clone();
+    ridge_only.drop_trees();
+    let coarse = evaluate(&test, &ridge_only);
+    assert!(
+        coarse.top100_kept_at_10pct >= 0.88
+            && coarse.top100_kept_at_10pct < ev.top100_kept_at_10pct,
+        "{coarse:?}"
+    );
 }
 
 /// Fragments used in the pair-table checks: small ones, one of each kind of site orbit (a
@@ -411,6 +426,15 @@ fn screen_settings_are_checked() {
     .unwrap_err()
     .to_string();
     assert!(e.contains("pass_fraction"), "{e}");
+    let wf = lumisift::campaign::Workflow::parse(
+        p,
+        &base("[\"screen\", \"enumerate\"]", "").replace("0.1\n", "0.1\ntrees = false\n"),
+    )
+    .unwrap();
+    assert!(!wf.screen.expect("screen").trees);
+    let wf =
+        lumisift::campaign::Workflow::parse(p, &base("[\"screen\", \"enumerate\"]", "")).unwrap();
+    assert!(wf.screen.expect("screen").trees, "trees by default");
 }
 
 /// The screen's fast path gives the full prediction's ordering key: at the score's own
