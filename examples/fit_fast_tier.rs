@@ -3,8 +3,9 @@
 //!     cargo run --release --example fit_fast_tier -- [--write]
 //!     cargo run --release --example fit_fast_tier -- --write-pairs [--fresh]
 //!
-//! Reads `tests/fixtures/fast_tier/pi_tier.csv`, splits it by candidate id (see
-//! `tests/support/fasttier.rs`), fits by ridge regression on the fitting rows and prints
+//! Reads `tests/fixtures/fast_tier/pi_tier.csv`, splits it by sample and candidate id (see
+//! `tests/support/fasttier.rs`), chooses the screen score's floor and trees by cross-validation
+//! on the fitting rows, fits by ridge regression and boosting on them and prints
 //! Spearman ρ, MAE and the cascade's retention of the π tier's top 100 (by log10 k_TADF) on
 //! the test rows. With `--write` it writes `data/fast-tier.toml` (the integration test
 //! `fast_tier` then checks the file against the same data). With `--write-pairs` it estimates
