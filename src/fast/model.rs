@@ -286,7 +286,7 @@ fn dot<const N: usize>(w: &[f64; N], x: &[f64; N]) -> f64 {
 }
 
 impl BoundModel {
-    /// Order by the screen score's ridge part alone (no boosted trees): about four times
+    /// Order by the screen score's ridge part alone (no boosted trees): about three times
     /// faster per tuple, a coarser screen (see `data/fast-tier.toml`'s held-out record).
     pub fn drop_trees(&mut self) {
         self.trees.clear();
