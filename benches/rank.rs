@@ -15,19 +15,9 @@ use lumisift::rank::{DiversityParams, Filters, PickInput, RankParams, Scored, Un
 
 const N: usize = 1_000_000;
 
-struct Rng(u64);
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-        z ^ (z >> 31)
-    }
-    fn unit(&mut self) -> f64 {
-        (self.next() >> 11) as f64 / (1u64 << 53) as f64
-    }
-}
+#[path = "../tests/support/splitmix.rs"]
+mod splitmix;
+use splitmix::Rng;
 
 fn rows() -> Vec<Scored> {
     let mut rng = Rng(2026);

@@ -219,8 +219,6 @@ pub fn reference_profile(ppp: &PppParams) -> Option<SiteProfile> {
 pub struct PairTwist {
     pub theta_deg: f32,
     pub cos2: f32,
-    /// √⟨cos²θ⟩ (kept so the hot path takes no square root).
-    pub rms_cos: f32,
     /// The two sites' dimer in the card set's pair table (`PairTable::entries`; 0 = none):
     /// kept beside the twist so an arm's link gives both in one look-up.
     pub dimer: u32,
@@ -249,13 +247,24 @@ pub fn link_mixing(
     )
 }
 
-/// The additive pair model (module docs) for sites `x` and `y` (None = probe-like).
+/// The additive pair model (module docs) for sites `x` and `y` (None = probe-like), with the
+/// mixing amplitudes left at zero (the card set fills them).
 pub fn pair_twist(
     x: Option<&SiteProfile>,
     y: Option<&SiteProfile>,
     reference: &SiteProfile,
     tp: &TorsionParams,
 ) -> PairTwist {
+    pair_twist_rms(x, y, reference, tp).0
+}
+
+/// [`pair_twist`] and √⟨cos²θ⟩ (rounded to single precision, the table's precision).
+fn pair_twist_rms(
+    x: Option<&SiteProfile>,
+    y: Option<&SiteProfile>,
+    reference: &SiteProfile,
+    tp: &TorsionParams,
+) -> (PairTwist, f32) {
     let x = x.unwrap_or(reference);
     let y = y.unwrap_or(reference);
     let raw: Vec<(f64, f64, f64)> = (0..GRID_DEG.len())
@@ -273,14 +282,16 @@ pub fn pair_twist(
         .iter()
         .map(|p| p.weight * p.theta_deg.to_radians().cos().powi(2))
         .sum();
-    PairTwist {
-        theta_deg: prof.equilibrium_deg as f32,
-        cos2: cos2 as f32,
-        rms_cos: cos2.sqrt() as f32,
-        dimer: 0,
-        mix_homo: 0.0,
-        mix_lumo: 0.0,
-    }
+    (
+        PairTwist {
+            theta_deg: prof.equilibrium_deg as f32,
+            cos2: cos2 as f32,
+            dimer: 0,
+            mix_homo: 0.0,
+            mix_lumo: 0.0,
+        },
+        cos2.sqrt() as f32,
+    )
 }
 
 /// Every card of a library plus the dense site-pair twist table and the pair table of
@@ -293,9 +304,6 @@ pub struct CardSet {
     pub n_sites: usize,
     /// `pairs[i * n_sites + j]` for global site indices i, j.
     pub pairs: Vec<PairTwist>,
-    /// Per global site: |HOMO| and |LUMO| coefficient at the anchor (flat, for the hot path).
-    pub site_homo: Vec<f64>,
-    pub site_lumo: Vec<f64>,
     /// π-tier values of every dimer of the fragments asked for.
     pub pair_table: PairTable,
     /// What a tuple none of whose dimers is known gets: the mean of the known entries.
@@ -363,20 +371,16 @@ impl CardSet {
         }
         let n = all.len();
         assert_eq!(pair_table.n_sites, n, "pair table numbered like the cards");
-        let site_homo: Vec<f64> = cards
-            .iter()
-            .flat_map(|c| c.anchor_homo2.iter().map(|x| x.sqrt()))
-            .collect();
-        let site_lumo: Vec<f64> = cards
-            .iter()
-            .flat_map(|c| c.anchor_lumo2.iter().map(|x| x.sqrt()))
-            .collect();
-        // Per site: its fragment's orbital energies and the anchor coefficients.
+        // Per site: its fragment's HOMO and LUMO energies and the |HOMO|, |LUMO| coefficients
+        // at the anchor.
         let site_orbitals: Vec<(f64, f64, f64, f64)> = cards
             .iter()
-            .flat_map(|c| std::iter::repeat_n((c.homo_ev, c.lumo_ev), c.sites.len()))
-            .zip(site_homo.iter().zip(&site_lumo))
-            .map(|((h, l), (&ch, &cl))| (h, l, ch, cl))
+            .flat_map(|c| {
+                c.anchor_homo2
+                    .iter()
+                    .zip(&c.anchor_lumo2)
+                    .map(|(h2, l2)| (c.homo_ev, c.lumo_ev, h2.sqrt(), l2.sqrt()))
+            })
             .collect();
         let mut pairs: Vec<PairTwist> = Vec::with_capacity(n * n);
         for i in 0..n {
@@ -384,10 +388,10 @@ impl CardSet {
                 pairs.push(if j < i {
                     pairs[j * n + i]
                 } else {
-                    let mut p = pair_twist(all[i], all[j], reference, tp);
+                    let (mut p, rms_cos) = pair_twist_rms(all[i], all[j], reference, tp);
                     // At most one order of a site pair has a dimer (donor side first).
                     p.dimer = pair_table.index[i * n + j].max(pair_table.index[j * n + i]);
-                    let (h, l) = link_mixing(site_orbitals[i], site_orbitals[j], p.rms_cos as f64);
+                    let (h, l) = link_mixing(site_orbitals[i], site_orbitals[j], rms_cos as f64);
                     (p.mix_homo, p.mix_lumo) = (h as f32, l as f32);
                     p
                 });
@@ -399,8 +403,6 @@ impl CardSet {
             site_offset,
             n_sites: n,
             pairs,
-            site_homo,
-            site_lumo,
             pair_table,
             pair_fallback,
         }

@@ -298,9 +298,10 @@ pub fn fit_model(
             r
         })
         .collect();
+    let targets: Vec<[f64; 4]> = samples.iter().map(|s| s.targets(&screen)).collect();
     let mut w = Vec::new();
     for k in 0..3 {
-        let y: Vec<f64> = samples.iter().map(|s| s.targets(&screen)[k]).collect();
+        let y: Vec<f64> = targets.iter().map(|t| t[k]).collect();
         w.push(ridge(&rows, &y, alpha)?);
     }
     // The screen score: the same columns plus, per class, every product of two descriptors
@@ -326,7 +327,7 @@ pub fn fit_model(
             q
         })
         .collect();
-    let y: Vec<f64> = samples.iter().map(|s| s.targets(&screen)[3]).collect();
+    let y: Vec<f64> = targets.iter().map(|t| t[3]).collect();
     let wq = ridge(&quad, &y, alpha)?;
     // Boosted trees on what the ridge part leaves (its in-sample prediction as the start).
     let init: Vec<f64> = quad

@@ -15,19 +15,19 @@ use lumisift::rank::{
     pick_diverse, rank,
 };
 
-/// SplitMix64: a fixed, seedable generator for test data.
-struct Rng(u64);
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-        z ^ (z >> 31)
-    }
-    fn unit(&mut self) -> f64 {
-        (self.next() >> 11) as f64 / (1u64 << 53) as f64
-    }
+#[path = "../support/splitmix.rs"]
+mod splitmix;
+use splitmix::Rng;
+
+/// MaxMin candidates: each fingerprint with its fragment ids.
+fn pool<'a>(fps: &'a [Fingerprint], ids: &'a [Vec<String>]) -> Vec<PickInput<'a>> {
+    fps.iter()
+        .zip(ids)
+        .map(|(f, ids)| PickInput {
+            fingerprint: f,
+            fragment_ids: ids,
+        })
+        .collect()
 }
 
 fn close(a: f64, b: f64, tol: f64) -> bool {
@@ -505,14 +505,7 @@ fn maxmin_picks_respect_the_similarity_ceiling() {
     let frags: Vec<Vec<String>> = (0..fps.len())
         .map(|i| vec![format!("acc-{}", i % 7), format!("don-{}", i % 5)])
         .collect();
-    let pool: Vec<PickInput> = fps
-        .iter()
-        .zip(&frags)
-        .map(|(f, ids)| PickInput {
-            fingerprint: f,
-            fragment_ids: ids,
-        })
-        .collect();
+    let pool = pool(&fps, &frags);
     let params = DiversityParams {
         n_pick: 10,
         max_similarity: 0.5,
@@ -567,14 +560,7 @@ fn fragment_cap_limits_picks_sharing_a_fragment() {
             vec![format!("acc-{}", i % 10), d.clone(), d]
         })
         .collect();
-    let pool: Vec<PickInput> = fps
-        .iter()
-        .zip(&frags)
-        .map(|(f, ids)| PickInput {
-            fingerprint: f,
-            fragment_ids: ids,
-        })
-        .collect();
+    let pool = pool(&fps, &frags);
     let p = pick_diverse(
         &pool,
         &DiversityParams {
@@ -620,14 +606,7 @@ fn maxmin_on_real_molecules() {
         .map(|s| circular_fingerprint(&parse_smiles(s).unwrap(), FingerprintParams::default()))
         .collect();
     let ids: Vec<Vec<String>> = (0..5).map(|i| vec![format!("f{i}")]).collect();
-    let pool: Vec<PickInput> = fps
-        .iter()
-        .zip(&ids)
-        .map(|(f, i)| PickInput {
-            fingerprint: f,
-            fragment_ids: i,
-        })
-        .collect();
+    let pool = pool(&fps, &ids);
     let thr = 0.35;
     let p = pick_diverse(
         &pool,
