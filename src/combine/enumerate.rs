@@ -25,13 +25,17 @@ pub enum Arm {
     },
 }
 
+/// A tuple's arms: inline for up to four core sites.
+pub type Arms = smallvec::SmallVec<[Arm; 4]>;
+
 /// One admitted combination.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Tuple {
     pub architecture: Architecture,
     pub core: usize,
-    /// One arm per core site, in site order.
-    pub arms: Vec<Arm>,
+    /// One arm per core site, in site order (inline up to four sites: no allocation per
+    /// tuple; a core with more sites spills to the heap).
+    pub arms: Arms,
 }
 
 impl Tuple {
@@ -138,7 +142,7 @@ impl Tuple {
         Ok(Tuple {
             architecture,
             core,
-            arms,
+            arms: arms.into(),
         })
     }
 
@@ -488,7 +492,7 @@ impl<'a> Enumerator<'a> {
         f(self.judge(Tuple {
             architecture: arch,
             core,
-            arms: arms.to_vec(),
+            arms: Arms::from_slice(arms),
         }))
     }
 

@@ -121,7 +121,7 @@ pub fn fragment_card(f: &Fragment, ppp: &PppParams) -> FragmentCard {
         &Tuple {
             architecture: Architecture::DA,
             core: 0,
-            arms: vec![Arm::H; f.site_count()],
+            arms: vec![Arm::H; f.site_count()].into(),
         },
     );
     // One SCF of the capped fragment gives its levels and its anchor amplitudes.
@@ -144,7 +144,7 @@ pub fn fragment_card(f: &Fragment, ppp: &PppParams) -> FragmentCard {
                 &Tuple {
                     architecture: Architecture::DA,
                     core: 0,
-                    arms,
+                    arms: arms.into(),
                 },
             );
             site_profile(&c, ppp)
@@ -208,7 +208,7 @@ pub fn reference_profile(ppp: &PppParams) -> Option<SiteProfile> {
         &Tuple {
             architecture: Architecture::DA,
             core: 0,
-            arms: vec![Arm::Terminal(0)],
+            arms: vec![Arm::Terminal(0)].into(),
         },
     );
     site_profile(&c, ppp)

@@ -143,7 +143,7 @@ pub fn dimer_tuple(lib: &Library, d: usize, sd: usize, a: usize, sa: usize) -> O
     Some(Tuple {
         architecture: Architecture::DA,
         core,
-        arms,
+        arms: arms.into(),
     })
 }
 

@@ -242,7 +242,8 @@ fn bridged_candidate_has_a_suzuki_and_an_amination_step() {
             bridge: idx("1-4-phenylene"),
             core_site: 0,
             terminal: idx("carbazol-9-yl"),
-        }],
+        }]
+        .into(),
     };
     let c = assemble(lib(), &t);
     let p = plan_of(&c);
