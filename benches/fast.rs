@@ -1,6 +1,8 @@
-//! The fast fragment tier per tuple (descriptors from the card tables + the bound model +
-//! log10 k_TADF), over 100,000 pre-enumerated tuples of the shipped library (all
-//! architectures, Dn-A up to four mixed donors): `cargo bench --bench fast`.
+//! The fast fragment tier per tuple (descriptors from the card tables + the bound model's
+//! screen score), over 100,000 pre-enumerated tuples of the shipped library (all
+//! architectures, Dn-A up to four mixed donors) in the screen's path
+//! (`BoundModel::score_stream`): `cargo bench --bench fast`. Instruction counts of the same
+//! loops: `examples/fast_tier_profile.rs`.
 //! Target (issue 5): ≥ 10^7 tuples/s per core, no allocation per tuple. Measured with the
 //! screen score's boosted trees (the default) and without (`[screen] trees = false`).
 use std::ops::ControlFlow;
@@ -9,7 +11,7 @@ use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 
 use lumisift::combine::{DnAMode, EnumerateParams, Enumerator, TupleEvent};
-use lumisift::fast::{CardSet, FastModel};
+use lumisift::fast::{CardSet, Describer, FastModel};
 use lumisift::model::Architecture;
 use lumisift::pi::params::PppParams;
 
@@ -26,12 +28,14 @@ fn bench(c: &mut Criterion) {
         ..EnumerateParams::default()
     };
     let en = Enumerator::new(&lib, &params).unwrap();
-    // Every 7th admitted tuple, so all architectures are represented.
+    // Blocks of 1,000 consecutive admitted tuples, one block in every 7,000: every
+    // architecture is represented and each block is the stream the screen meets (the screen
+    // describes tuples in enumeration order, reusing unchanged arms).
     let mut tuples = Vec::new();
     let mut k = 0usize;
     en.for_each(|e| {
         if let TupleEvent::Admitted(t) = e {
-            if k.is_multiple_of(7) {
+            if k % 7000 < 1000 {
                 tuples.push(t);
             }
             k += 1;
@@ -48,8 +52,9 @@ fn bench(c: &mut Criterion) {
         g.bench_function(format!("{name}, {} tuples", tuples.len()), |b| {
             b.iter(|| {
                 let mut s = 0.0;
+                let mut d = Describer::new(&set);
                 for t in &tuples {
-                    if let Some((m, _)) = model.score(&set, black_box(t)) {
+                    if let Some((m, _)) = model.score_stream(&mut d, black_box(t)) {
                         s += m;
                     }
                 }
@@ -57,6 +62,20 @@ fn bench(c: &mut Criterion) {
             })
         });
     }
+    // The descriptors alone (the card and pair-table look-ups every score starts from).
+    g.bench_function(format!("descriptors, {} tuples", tuples.len()), |b| {
+        b.iter(|| {
+            let mut s = 0.0;
+            let mut d = Describer::new(&set);
+            for t in &tuples {
+                let mut x = [0.0; lumisift::fast::N_FEATURES];
+                if d.describe(black_box(t), &mut x).is_some() {
+                    s += black_box(&x)[19];
+                }
+            }
+            black_box(s)
+        })
+    });
     g.finish();
 }
 

@@ -6,6 +6,7 @@ use super::cards::CardSet;
 use super::pairs::PairEntry;
 use crate::combine::{Arm, Tuple};
 use crate::model::{Architecture, Role};
+use smallvec::SmallVec;
 
 /// Number of descriptors (including the constant).
 pub const N_FEATURES: usize = 27;
@@ -104,7 +105,7 @@ const LN_SMALL: [f64; 7] = [
 ];
 
 /// One donor–acceptor path.
-#[derive(Clone, Copy)]
+#[derive(Clone, Copy, PartialEq)]
 struct Path {
     gap: f64,
     coupling: f64,
@@ -115,144 +116,241 @@ struct Path {
     bridge: Option<usize>,
 }
 
-/// Running statistics of the arms' dimers (pair table entries).
-struct PairStats<'a> {
-    best: Option<&'a PairEntry>,
-    /// For a bridged best arm: its donor–bridge and bridge–acceptor dimers (entry indices,
-    /// from the two links' twist-table slots).
+/// What one arm of a tuple contributes, from the card and pair tables alone: computed once
+/// per (core, site, arm) and reused while the following tuples keep that arm at that site
+/// (an enumeration changes one arm at a time).
+#[derive(Clone, Copy)]
+struct ArmRecord {
+    /// Lowest local S1 and T1 of the arm's own fragments (+∞ for a hydrogen cap).
+    s1: f64,
+    t1: f64,
+    /// The arm's donor–acceptor path; None for a hydrogen cap or roles that never meet.
+    path: Option<Path>,
+    /// The arm's dimer (pair-table entry index) when its values are known.
+    dimer: Option<u32>,
+    /// For a bridged arm: its donor–bridge and bridge–acceptor dimers (entry indices, from the
+    /// two links' twist-table slots).
     halves: Option<(u32, u32)>,
-    s1_min: f64,
-    s1_second: f64,
-    t1_min: f64,
+}
+
+/// The record of `arm` at `site` of `core` (`core_is_donor`: the core is the donor side).
+fn arm_record(
+    cards: &CardSet,
+    core: usize,
+    core_is_donor: bool,
+    site: usize,
+    arm: Arm,
+) -> ArmRecord {
+    let mut r = ArmRecord {
+        s1: f64::INFINITY,
+        t1: f64::INFINITY,
+        path: None,
+        dimer: None,
+        halves: None,
+    };
+    let mut local = |f: usize| {
+        let c = &cards.cards[f];
+        if c.s1_ev < r.s1 {
+            r.s1 = c.s1_ev;
+        }
+        if c.t1_ev < r.t1 {
+            r.t1 = c.t1_ev;
+        }
+    };
+    // (terminal fragment, ⟨cos²⟩ product, mixing, twist, bridge)
+    // (…, the dimer slot of a direct arm's link, the bridged arm's two halves)
+    let (terminal, coupling, mixing, twist, bridge, direct, halves) = match arm {
+        Arm::H => return r,
+        Arm::Terminal(f) => {
+            local(f);
+            let p = cards.pair(core, site, f, 0);
+            let c2 = p.cos2 as f64;
+            let (h, l) = (p.mix_homo as f64, p.mix_lumo as f64);
+            (f, c2, h + l, p.theta_deg as f64, None, Some(p.dimer), None)
+        }
+        Arm::Bridged {
+            bridge,
+            core_site,
+            terminal,
+        } => {
+            local(bridge);
+            local(terminal);
+            let cs = core_site as usize;
+            let a = cards.pair(core, site, bridge, cs);
+            let b = cards.pair(bridge, 1 - cs, terminal, 0);
+            let (ca, cb) = (a.cos2 as f64, b.cos2 as f64);
+            // Hole and electron meet on the bridge (hole leaks onto it across the
+            // terminal's link, electron across the core's) or pass it (products of the
+            // two links' amplitudes of one kind).
+            let (h1, l1) = (b.mix_homo as f64, b.mix_lumo as f64);
+            let (h2, l2) = (a.mix_homo as f64, a.mix_lumo as f64);
+            let meet = if core_is_donor { l1 * h2 } else { h1 * l2 };
+            (
+                terminal,
+                ca * cb,
+                meet + h1 * h2 + l1 * l2,
+                b.theta_deg.max(a.theta_deg) as f64,
+                Some(bridge),
+                None,
+                // Donor–bridge and bridge–acceptor: the terminal's link first when the
+                // terminal is the donor.
+                Some(if core_is_donor {
+                    (a.dimer, b.dimer)
+                } else {
+                    (b.dimer, a.dimer)
+                }),
+            )
+        }
+    };
+    let term = &cards.cards[terminal];
+    let roles_meet = if core_is_donor {
+        term.role == Role::Acceptor
+    } else {
+        term.role == Role::Donor
+    };
+    if !roles_meet {
+        return r;
+    }
+    let core_card = &cards.cards[core];
+    let (homo, lumo) = if core_is_donor {
+        (core_card.homo_ev, term.lumo_ev)
+    } else {
+        (term.homo_ev, core_card.lumo_ev)
+    };
+    // The arm's dimer: the core site and the terminal's site 1 joined directly (for a
+    // bridged arm, the donor–acceptor pair without its bridge).
+    let k = match direct {
+        Some(k) => k,
+        None => {
+            let (cs, ts) = (cards.site_offset[core] + site, cards.site_offset[terminal]);
+            let n = cards.pair_table.n_sites;
+            if core_is_donor {
+                cards.pair_table.index[cs * n + ts]
+            } else {
+                cards.pair_table.index[ts * n + cs]
+            }
+        }
+    };
+    r.dimer = cards.pair_table.entries[k as usize].is_known().then_some(k);
+    r.halves = halves;
+    r.path = Some(Path {
+        gap: lumo - homo,
+        coupling,
+        mixing,
+        twist,
+        donor: if core_is_donor { core } else { terminal },
+        acceptor: if core_is_donor { terminal } else { core },
+        bridge,
+    });
+    r
+}
+
+/// Describes tuples one after another, reusing each site's arm record while the next tuple
+/// keeps the same core and the same arm at that site. The numbers are those of [`describe`];
+/// an enumeration's stream changes one arm at a time, so most arms are looked up once.
+pub struct Describer<'a> {
+    cards: &'a CardSet,
+    /// Core and whether it is the donor side, of the records kept.
+    key: Option<(usize, bool)>,
+    arms: SmallVec<[Arm; 4]>,
+    records: SmallVec<[ArmRecord; 4]>,
+}
+
+impl<'a> Describer<'a> {
+    pub fn new(cards: &'a CardSet) -> Describer<'a> {
+        Describer {
+            cards,
+            key: None,
+            arms: SmallVec::new(),
+            records: SmallVec::new(),
+        }
+    }
+
+    /// The card set this describer reads.
+    pub fn cards(&self) -> &'a CardSet {
+        self.cards
+    }
+
+    /// Summarise `t` and write its descriptors into `x` (see [`describe`]).
+    #[inline]
+    pub fn describe(&mut self, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option<TupleSummary> {
+        let cards = self.cards;
+        let core_is_donor =
+            t.architecture == Architecture::ADA || cards.cards[t.core].role == Role::Donor;
+        if self.key != Some((t.core, core_is_donor)) {
+            self.key = Some((t.core, core_is_donor));
+            self.arms.clear();
+            self.records.clear();
+        }
+        self.arms.truncate(t.arms.len());
+        self.records.truncate(t.arms.len());
+        for (site, &arm) in t.arms.iter().enumerate() {
+            if site < self.arms.len() {
+                if self.arms[site] != arm {
+                    self.arms[site] = arm;
+                    self.records[site] = arm_record(cards, t.core, core_is_donor, site, arm);
+                }
+            } else {
+                self.arms.push(arm);
+                self.records
+                    .push(arm_record(cards, t.core, core_is_donor, site, arm));
+            }
+        }
+        aggregate(cards, t.core, &self.records, x)
+    }
 }
 
 /// Summarise `t` and write its descriptors into `x`. Returns None when the tuple has no
-/// donor–acceptor path (every arm hydrogen, or roles that never meet).
+/// donor–acceptor path (every arm hydrogen, or roles that never meet). No allocation (for
+/// cores of up to four sites). A stream of tuples is faster through a [`Describer`].
 pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option<TupleSummary> {
-    let core = &cards.cards[t.core];
-    let core_is_donor = t.architecture == Architecture::ADA || core.role == Role::Donor;
+    Describer::new(cards).describe(t, x)
+}
+
+/// The tuple's descriptors from its arms' records.
+#[inline]
+fn aggregate(
+    cards: &CardSet,
+    core: usize,
+    records: &[ArmRecord],
+    x: &mut [f64; N_FEATURES],
+) -> Option<TupleSummary> {
+    let core = &cards.cards[core];
     let (mut s1_min, mut t1_min) = (core.s1_ev, core.t1_ev);
     let mut best: Option<Path> = None;
     let mut n_paths = 0usize;
     let mut mixing_sq_sum = 0.0;
-    let mut ps = PairStats {
-        best: None,
-        halves: None,
-        s1_min: f64::INFINITY,
-        s1_second: f64::INFINITY,
-        t1_min: f64::INFINITY,
-    };
-    let mut local = |f: usize| {
-        let c = &cards.cards[f];
-        if c.s1_ev < s1_min {
-            s1_min = c.s1_ev;
+    // Running statistics of the arms' known dimers.
+    let mut pbest: Option<&PairEntry> = None;
+    let mut phalves: Option<(u32, u32)> = None;
+    let (mut ps1_min, mut ps1_second, mut pt1_min) = (f64::INFINITY, f64::INFINITY, f64::INFINITY);
+    for r in records {
+        if r.s1 < s1_min {
+            s1_min = r.s1;
         }
-        if c.t1_ev < t1_min {
-            t1_min = c.t1_ev;
+        if r.t1 < t1_min {
+            t1_min = r.t1;
         }
-    };
-    for (site, arm) in t.arms.iter().enumerate() {
-        // (terminal fragment, ⟨cos²⟩ product, mixing, twist, bridge)
-        // (…, the bridge's site joined to the core)
-        // (…, the dimer slot of a direct arm's link, the bridged arm's two halves)
-        let (terminal, coupling, mixing, twist, bridge, direct, halves) = match *arm {
-            Arm::H => continue,
-            Arm::Terminal(f) => {
-                local(f);
-                let p = cards.pair(t.core, site, f, 0);
-                let c2 = p.cos2 as f64;
-                let (h, l) = (p.mix_homo as f64, p.mix_lumo as f64);
-                (f, c2, h + l, p.theta_deg as f64, None, Some(p.dimer), None)
-            }
-            Arm::Bridged {
-                bridge,
-                core_site,
-                terminal,
-            } => {
-                local(bridge);
-                local(terminal);
-                let cs = core_site as usize;
-                let a = cards.pair(t.core, site, bridge, cs);
-                let b = cards.pair(bridge, 1 - cs, terminal, 0);
-                let (ca, cb) = (a.cos2 as f64, b.cos2 as f64);
-                // Hole and electron meet on the bridge (hole leaks onto it across the
-                // terminal's link, electron across the core's) or pass it (products of the
-                // two links' amplitudes of one kind).
-                let (h1, l1) = (b.mix_homo as f64, b.mix_lumo as f64);
-                let (h2, l2) = (a.mix_homo as f64, a.mix_lumo as f64);
-                let meet = if core_is_donor { l1 * h2 } else { h1 * l2 };
-                (
-                    terminal,
-                    ca * cb,
-                    meet + h1 * h2 + l1 * l2,
-                    b.theta_deg.max(a.theta_deg) as f64,
-                    Some(bridge),
-                    None,
-                    // Donor–bridge and bridge–acceptor: the terminal's link first when the
-                    // terminal is the donor.
-                    Some(if core_is_donor {
-                        (a.dimer, b.dimer)
-                    } else {
-                        (b.dimer, a.dimer)
-                    }),
-                )
-            }
-        };
-        let term = &cards.cards[terminal];
-        let roles_meet = if core_is_donor {
-            term.role == Role::Acceptor
-        } else {
-            term.role == Role::Donor
-        };
-        if !roles_meet {
+        let Some(p) = r.path else {
             continue;
-        }
-        let (homo, lumo) = if core_is_donor {
-            (core.homo_ev, term.lumo_ev)
-        } else {
-            (term.homo_ev, core.lumo_ev)
         };
-        // The arm's dimer: the core site and the terminal's site 1 joined directly (for a
-        // bridged arm, the donor–acceptor pair without its bridge).
-        let e = match direct {
-            Some(k) => &cards.pair_table.entries[k as usize],
-            None => {
-                let (cs, ts) = (
-                    cards.site_offset[t.core] + site,
-                    cards.site_offset[terminal],
-                );
-                if core_is_donor {
-                    cards.pair_table.get(cs, ts)
-                } else {
-                    cards.pair_table.get(ts, cs)
-                }
-            }
-        };
-        if e.is_known() {
+        if let Some(k) = r.dimer {
+            let e = &cards.pair_table.entries[k as usize];
             let s1 = e.v.s1_ev;
-            if s1 < ps.s1_min {
-                ps.s1_second = ps.s1_min;
-                ps.s1_min = s1;
-            } else if s1 < ps.s1_second {
-                ps.s1_second = s1;
+            if s1 < ps1_min {
+                ps1_second = ps1_min;
+                ps1_min = s1;
+            } else if s1 < ps1_second {
+                ps1_second = s1;
             }
-            ps.t1_min = ps.t1_min.min(e.v.t1_ev);
-            if ps.best.is_none_or(|b| e.merit > b.merit) {
-                ps.best = Some(e);
-                ps.halves = halves;
+            pt1_min = pt1_min.min(e.v.t1_ev);
+            if pbest.is_none_or(|b| e.merit > b.merit) {
+                pbest = Some(e);
+                phalves = r.halves;
             }
         }
         n_paths += 1;
-        mixing_sq_sum += mixing * mixing;
-        let p = Path {
-            gap: lumo - homo,
-            coupling,
-            mixing,
-            twist,
-            donor: if core_is_donor { t.core } else { terminal },
-            acceptor: if core_is_donor { terminal } else { t.core },
-            bridge,
-        };
+        mixing_sq_sum += p.mixing * p.mixing;
         best = match best {
             None => Some(p),
             Some(b) if p.gap < b.gap - 1e-9 || (p.gap <= b.gap + 1e-9 && p.mixing > b.mixing) => {
@@ -264,10 +362,10 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
     let b = best?;
     // A tuple none of whose dimers is known (failed SCFs) gets the table's neutral entry: the
     // card descriptors alone then order it (the model has no better information).
-    let pe = ps.best.copied().unwrap_or(cards.pair_fallback);
-    if ps.best.is_none() {
-        ps.s1_min = pe.v.s1_ev;
-        ps.t1_min = pe.v.t1_ev;
+    let pe = pbest.copied().unwrap_or(cards.pair_fallback);
+    if pbest.is_none() {
+        ps1_min = pe.v.s1_ev;
+        pt1_min = pe.v.t1_ev;
     }
     // Halves of a bridged best arm (unknown ones: the fallback); zeros for a direct arm.
     let half = |e: &PairEntry| {
@@ -278,7 +376,7 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         };
         [e.v.s1_ev, e.log10_delta_est, e.log10_f]
     };
-    let (db, ba) = match ps.halves {
+    let (db, ba) = match phalves {
         Some((x, y)) => (
             half(&cards.pair_table.entries[x as usize]),
             half(&cards.pair_table.entries[y as usize]),
@@ -307,13 +405,13 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         b.coupling,
         (over - HINGE_KNOTS_EV[0]).max(0.0),
         (over - HINGE_KNOTS_EV[1]).max(0.0),
-        ps.s1_min,
-        ps.t1_min,
+        ps1_min,
+        pt1_min,
         pe.v.delta_est_ev,
         pe.log10_delta_est,
         pe.log10_f,
         pe.merit,
-        (ps.s1_second - ps.s1_min).min(SECOND_GAP_CAP_EV),
+        (ps1_second - ps1_min).min(SECOND_GAP_CAP_EV),
         db[0],
         db[1],
         db[2],
@@ -331,7 +429,7 @@ pub fn describe(cards: &CardSet, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option
         bridge: b.bridge,
         class: if b.bridge.is_some() {
             TupleClass::Bridged
-        } else if n_paths == 1 && ps.best.is_some() {
+        } else if n_paths == 1 && pbest.is_some() {
             TupleClass::Dimer
         } else {
             TupleClass::MultiArm

@@ -141,16 +141,27 @@ impl Sample {
     }
 }
 
+/// The choices a screen-score fit makes before seeing its rows: the floor's quantile, whether
+/// the ridge part has the products, the boosting settings and the descriptor groups the trees
+/// may ask about (empty: one group of every descriptor).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScreenSettings {
+    pub floor_quantile: f64,
+    pub products: bool,
+    pub boost: super::trees::BoostParams,
+    pub tree_groups: Vec<Vec<usize>>,
+}
+
 /// The screen score's target settings for a fit: log10 k_TADF at `temperature_k` and
-/// `refractive_index`, floored at the `floor_quantile` quantile of every sample's (dimers
-/// included: the floor is a point of the library's distribution).
+/// `refractive_index`, floored at the `settings.floor_quantile` quantile of every sample's
+/// (dimers included: the floor is a point of the library's distribution).
 pub fn screen_fit(
     samples: &[Sample],
-    floor_quantile: f64,
-    boost: super::trees::BoostParams,
+    settings: &ScreenSettings,
     refractive_index: f64,
     temperature_k: f64,
 ) -> ScreenFit {
+    let floor_quantile = settings.floor_quantile;
     let mut m: Vec<f64> = samples
         .iter()
         .map(|s| s.merit(refractive_index, temperature_k))
@@ -168,12 +179,14 @@ pub fn screen_fit(
         floor,
         temperature_k,
         refractive_index,
-        boost,
+        products: settings.products,
+        boost: settings.boost,
+        tree_groups: settings.tree_groups.clone(),
     }
 }
 
-/// Cross-validated choice of the screen score's floor and trees: for each (floor quantile,
-/// boosting settings) of `grid`, the mean over `folds` folds (sample index mod `folds`) of the
+/// Cross-validated choice of the screen score's settings: for each [`ScreenSettings`] of
+/// `grid`, the mean over `folds` folds (sample index mod `folds`) of the
 /// fraction of each held-out fold's best `top_fraction` (by the π tier's log10 k_TADF) kept
 /// when passing `pass_fraction` of it by the score fitted on the other folds. Returns the mean
 /// retention per grid point.
@@ -183,7 +196,7 @@ pub fn cross_validate_screen(
     ids: &[String],
     cards: &super::CardSet,
     alpha: f64,
-    grid: &[(f64, super::trees::BoostParams)],
+    grid: &[ScreenSettings],
     folds: usize,
     top_fraction: f64,
     pass_fraction: f64,
@@ -191,7 +204,7 @@ pub fn cross_validate_screen(
     temperature_k: f64,
 ) -> Vec<f64> {
     grid.iter()
-        .map(|&(q, boost)| {
+        .map(|settings| {
             let mut sum = 0.0;
             let mut n = 0;
             for k in 0..folds {
@@ -204,7 +217,7 @@ pub fn cross_validate_screen(
                     .filter(in_fold)
                     .map(|i| &samples[i])
                     .collect();
-                let sf = screen_fit(&train, q, boost, refractive_index, temperature_k);
+                let sf = screen_fit(&train, settings, refractive_index, temperature_k);
                 let Some(m) = fit_model(&train, ids, alpha, sf) else {
                     continue;
                 };
@@ -308,7 +321,11 @@ pub fn fit_model(
     // (a quadratic form; the cascade's question — which tuples reach the top — turns on how
     // the dimers' S1, ΔEST and f combine, which a sum of terms cannot say).
     let o_q = rows.first().map_or(0, Vec::len);
-    let nq = super::model::N_PRODUCTS;
+    let nq = if screen.products {
+        super::model::N_PRODUCTS
+    } else {
+        0
+    };
     let quad: Vec<Vec<f64>> = rows
         .iter()
         .zip(&samples)
@@ -321,7 +338,7 @@ pub fn fit_model(
                 } else {
                     0
                 };
-            for (k, (i, j)) in super::model::products().enumerate() {
+            for (k, (i, j)) in super::model::products().take(nq).enumerate() {
                 q[o + k] = s.x[i] * s.x[j];
             }
             q
@@ -335,8 +352,12 @@ pub fn fit_model(
         .map(|r| r.iter().zip(&wq).map(|(a, b)| a * b).sum())
         .collect();
     let xs: Vec<&[f64]> = samples.iter().map(|s| s.x.as_slice()).collect();
-    let allowed: Vec<usize> = (1..super::N_FEATURES).collect();
-    let screen_trees = super::trees::boost(&xs, &y, &init, &allowed, &screen.boost);
+    let groups: Vec<Vec<usize>> = if screen.tree_groups.is_empty() {
+        vec![(1..super::N_FEATURES).collect()]
+    } else {
+        screen.tree_groups.clone()
+    };
+    let screen_trees = super::trees::boost(&xs, &y, &init, &groups, &screen.boost);
     let products = |multi: bool| {
         let o = o_q + if multi { nq } else { 0 };
         wq[o..o + nq].to_vec()

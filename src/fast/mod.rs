@@ -27,5 +27,5 @@ pub mod pairs;
 pub mod trees;
 
 pub use cards::{CardSet, FragmentCard, fragment_card, reference_profile};
-pub use features::{FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe};
+pub use features::{Describer, FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe};
 pub use model::{BoundModel, FastEstimate, FastModel, ScreenFit};

@@ -25,7 +25,7 @@ use serde::{Deserialize, Serialize};
 
 use super::cards::CardSet;
 use super::features::{
-    BRIDGE_SLOPE_FEATURES, FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe,
+    BRIDGE_SLOPE_FEATURES, Describer, FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe,
 };
 use crate::combine::Tuple;
 
@@ -69,22 +69,29 @@ pub struct Coefficients {
     pub log10_delta_est: Vec<f64>,
     pub log10_f: Vec<f64>,
     /// The screen score (log10 k_TADF floored, see [`ScreenFit`]): linear part, and the
-    /// coefficients of the descriptor products in [`products`] order.
+    /// coefficients of the descriptor products in [`products`] order (empty when the score
+    /// has none, [`ScreenFit::products`]).
     pub screen: Vec<f64>,
     pub screen_products: Vec<f64>,
 }
 
 /// What the screen score was fitted to: the π tier's log10 k_TADF (s⁻¹) at this temperature and
 /// refractive index, floored at the `floor_quantile` quantile of the fitting sample (`floor`).
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct ScreenFit {
     pub floor_quantile: f64,
     pub floor: f64,
     pub temperature_k: f64,
     pub refractive_index: f64,
+    /// Whether the ridge part has the per-class products of the pair-table descriptors.
+    pub products: bool,
     /// The boosted trees fitted to the ridge part's residuals (`trees = 0`: none).
     pub boost: super::trees::BoostParams,
+    /// Groups of descriptors (indices): each tree asks about one group only (empty: one group
+    /// of every descriptor). Groups of a few descriptors at few thresholds let the forest be
+    /// tabulated, one table look-up per group ([`super::trees::Forest`]).
+    pub tree_groups: Vec<Vec<usize>>,
 }
 
 /// How the model was fitted and how it did on tuples it was not fitted on.
@@ -168,7 +175,9 @@ pub struct BoundModel {
     /// Added to the screen score for the bound refractive index (k_r ∝ n², the same shift for
     /// every tuple); None when bound at a temperature other than the score's.
     screen_shift: Option<f64>,
-    trees: Vec<super::trees::Tree>,
+    /// Whether the screen score has its products (`q` is zero otherwise).
+    products: bool,
+    forest: super::trees::Forest,
 }
 
 impl FastModel {
@@ -199,10 +208,22 @@ impl FastModel {
                 t.features
             ));
         }
+        if let Some(f) = m
+            .screen
+            .tree_groups
+            .iter()
+            .flatten()
+            .find(|&&f| f >= N_FEATURES)
+        {
+            return Err(format!(
+                "screen.tree_groups: descriptor index {f} out of range"
+            ));
+        }
+        let n_products = if m.screen.products { N_PRODUCTS } else { 0 };
         for (class, c) in [("bridged", &m.bridged), ("multi_arm", &m.multi_arm)] {
-            if c.screen_products.len() != N_PRODUCTS {
+            if c.screen_products.len() != n_products {
                 return Err(format!(
-                    "{class}.screen_products: {} values for {N_PRODUCTS} products",
+                    "{class}.screen_products: {} values for {n_products} products",
                     c.screen_products.len()
                 ));
             }
@@ -262,7 +283,8 @@ impl FastModel {
             // Within 0.01 K: the temperature a workflow names, not a computed one.
             screen_shift: ((temperature_k - self.screen.temperature_k).abs() < 0.01)
                 .then(|| merit_const(refractive_index) - merit_const(self.screen.refractive_index)),
-            trees: self.screen_trees.clone(),
+            products: self.screen.products,
+            forest: super::trees::Forest::new(&self.screen_trees, &self.screen.tree_groups),
         }
     }
 }
@@ -289,7 +311,12 @@ impl BoundModel {
     /// Order by the screen score's ridge part alone (no boosted trees): about three times
     /// faster per tuple, a coarser screen (see `data/fast-tier.toml`'s held-out record).
     pub fn drop_trees(&mut self) {
-        self.trees.clear();
+        self.forest = super::trees::Forest::default();
+    }
+
+    /// How the screen score's trees are evaluated (for reports and benchmarks).
+    pub fn forest(&self) -> &super::trees::Forest {
+        &self.forest
     }
 
     /// The cascade's ordering key alone (equal to [`Self::predict`]'s `score`) and whether a
@@ -298,6 +325,15 @@ impl BoundModel {
     pub fn score(&self, cards: &CardSet, t: &Tuple) -> Option<(f64, bool)> {
         let mut x = [0.0; N_FEATURES];
         let s = describe(cards, t, &mut x)?;
+        Some(self.score_descriptors(&x, &s))
+    }
+
+    /// [`Self::score`] through a [`Describer`], which reuses the arm look-ups of the tuple
+    /// before: the screen's fast path over an enumeration's stream (the same numbers).
+    #[inline]
+    pub fn score_stream(&self, d: &mut Describer, t: &Tuple) -> Option<(f64, bool)> {
+        let mut x = [0.0; N_FEATURES];
+        let s = d.describe(t, &mut x)?;
         Some(self.score_descriptors(&x, &s))
     }
 
@@ -313,22 +349,12 @@ impl BoundModel {
         }
         if let Some(shift) = self.screen_shift {
             let (y, unseen) = self.raw::<1>(x, s, 3);
-            let q = &self.q[usize::from(s.class != TupleClass::Bridged)];
-            let mut z = [0.0f32; N_PRODUCT_FEATURES];
-            for (zi, xi) in z.iter_mut().zip(&x[PRODUCT_FIRST..]) {
-                *zi = *xi as f32;
-            }
-            // v = Qᵀz row by row (each step one scaled row added to a register-resident
-            // accumulator; no horizontal sums), then z · v.
-            let mut v = [0.0f32; N_PRODUCT_FEATURES];
-            for (zi, qi) in z.iter().zip(q) {
-                for (vj, qij) in v.iter_mut().zip(qi) {
-                    *vj += zi * qij;
-                }
-            }
-            let quad = f64::from(v.iter().zip(&z).map(|(a, b)| a * b).sum::<f32>());
-            let trees = super::trees::predict(&self.trees, x);
-            return (y[0] + quad + trees + shift, unseen);
+            let quad = if self.products {
+                self.quadratic(x, s.class)
+            } else {
+                0.0
+            };
+            return (y[0] + quad + self.forest.value(x) + shift, unseen);
         }
         let (y, unseen) = self.raw::<3>(x, s, 0);
         let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);
@@ -338,6 +364,25 @@ impl BoundModel {
                 - d * self.merit_per_ev,
             unseen,
         )
+    }
+
+    /// The screen score's products: zᵀQz over the pair-table descriptors, Q of `class`.
+    #[inline(always)]
+    fn quadratic(&self, x: &[f64; N_FEATURES], class: TupleClass) -> f64 {
+        let q = &self.q[usize::from(class != TupleClass::Bridged)];
+        let mut z = [0.0f32; N_PRODUCT_FEATURES];
+        for (zi, xi) in z.iter_mut().zip(&x[PRODUCT_FIRST..]) {
+            *zi = *xi as f32;
+        }
+        // v = Qᵀz row by row (each step one scaled row added to a register-resident
+        // accumulator; no horizontal sums), then z · v.
+        let mut v = [0.0f32; N_PRODUCT_FEATURES];
+        for (zi, qi) in z.iter().zip(q) {
+            for (vj, qij) in v.iter_mut().zip(qi) {
+                *vj += zi * qij;
+            }
+        }
+        f64::from(v.iter().zip(&z).map(|(a, b)| a * b).sum::<f32>())
     }
 
     /// `K` consecutive linear predictions of a fitted class (bridged or several direct arms),

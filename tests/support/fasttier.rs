@@ -1,4 +1,4 @@
-//! The fast tier's reference data (π-tier results on two seeded samples of the shipped library,
+//! The fast tier's reference data (π-tier results on seeded samples of the shipped library,
 //! `tests/fixtures/fast_tier/pi_tier.csv`, made by `make_fixture.py` beside it) and its split:
 //! the rows of sample `a` whose candidate id starts with a byte of 0x80 or above are the test
 //! library; every other row is for fitting unless its molecule is in the test library, so one
