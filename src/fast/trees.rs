@@ -373,6 +373,39 @@ impl Table {
 pub struct Forest {
     tables: Vec<Table>,
     trees: Vec<Tree>,
+    /// `trees` as the hot path reads them (100 bytes a tree instead of 192: 200 trees stay
+    /// within a core's L1 data cache).
+    compact: Vec<CompactTree>,
+}
+
+/// A tree as evaluated: descriptor indices as bytes, leaves in single precision (a sum of
+/// order one carries rounding near 10⁻⁶, far below the 10⁻² at which the order matters).
+#[derive(Debug, Clone, PartialEq)]
+struct CompactTree {
+    features: [u8; DEPTH],
+    thresholds: [f64; DEPTH],
+    leaves: [f32; LEAVES],
+}
+
+impl CompactTree {
+    fn new(t: &Tree) -> CompactTree {
+        CompactTree {
+            features: t
+                .features
+                .map(|f| u8::try_from(f).expect("descriptor index below 256")),
+            thresholds: t.thresholds,
+            leaves: t.leaves.map(|v| v as f32),
+        }
+    }
+
+    #[inline]
+    fn value(&self, x: &[f64]) -> f32 {
+        let mut idx = 0;
+        for k in 0..DEPTH {
+            idx |= usize::from(x[usize::from(self.features[k])] > self.thresholds[k]) << k;
+        }
+        self.leaves[idx]
+    }
 }
 
 impl Forest {
@@ -403,6 +436,7 @@ impl Forest {
         }
         Forest {
             tables,
+            compact: rest.iter().map(CompactTree::new).collect(),
             trees: rest,
         }
     }
@@ -419,7 +453,8 @@ impl Forest {
 
     #[inline]
     pub fn value(&self, x: &[f64]) -> f64 {
-        self.tables.iter().map(|t| t.value(x)).sum::<f64>() + predict(&self.trees, x)
+        let trees: f32 = self.compact.iter().map(|t| t.value(x)).sum();
+        self.tables.iter().map(|t| t.value(x)).sum::<f64>() + f64::from(trees)
     }
 }
 
@@ -498,7 +533,10 @@ mod tests {
         );
         let f = Forest::new(&wide, &[vec![0, 1, 2, 3, 4]]);
         assert!(f.tables().is_empty() && f.trees().len() == wide.len());
-        assert_eq!(f.value(&points[0]), predict(&wide, &points[0]));
+        for x in &points {
+            let (a, b) = (f.value(x), predict(&wide, x));
+            assert!((a - b).abs() < 1e-5, "{a} vs {b} at {x:?}");
+        }
     }
 
     /// A step in one descriptor among noise descriptors: the first split finds the step's
