@@ -3,7 +3,9 @@
 //!
 //! An oblivious tree asks the same question — descriptor `f_k` above threshold `t_k` — of every
 //! node at depth k, so a tree of depth D is D comparisons whose answers, read as bits, index
-//! one of 2^D leaves: no branches to mispredict, a few nanoseconds per tree. Boosting by least
+//! one of 2^D leaves: no branches to mispredict. A forest is evaluated through a bit mask per
+//! tuple built from one threshold count per descriptor (`SplitMasks`), or, when its trees ask
+//! about a few descriptors at few thresholds, through a table ([`Table`]). Boosting by least
 //! squares (Friedman, Ann. Statist. 29, 1189 (2001)) fits each tree to the residuals of the
 //! ones before, shrunk by a learning rate; the symmetric form is that of Prokhorenkova et al.,
 //! NeurIPS 2018. Splits are chosen exactly over candidate thresholds at quantiles of each
@@ -373,38 +375,104 @@ impl Table {
 pub struct Forest {
     tables: Vec<Table>,
     trees: Vec<Tree>,
-    /// `trees` as the hot path reads them (100 bytes a tree instead of 192: 200 trees stay
-    /// within a core's L1 data cache).
-    compact: Vec<CompactTree>,
+    /// `trees` as the hot path reads them, in masks of at most [`MASK_TREES`] trees.
+    masks: Vec<SplitMasks>,
 }
 
-/// A tree as evaluated: descriptor indices as bytes, leaves in single precision (a sum of
-/// order one carries rounding near 10⁻⁶, far below the 10⁻² at which the order matters).
-#[derive(Debug, Clone, PartialEq)]
-struct CompactTree {
-    features: [u8; DEPTH],
-    thresholds: [f64; DEPTH],
-    leaves: [f32; LEAVES],
+/// Trees evaluated through one bit mask per tuple: bit 4·t + k says whether tree t's split
+/// at depth k goes right. A descriptor's splits go right exactly for its thresholds below the
+/// value, so counting those thresholds picks one precomputed row of bits per descriptor, and
+/// the rows OR-ed together are the mask; each tree's leaf index is then four bits of it. Per
+/// tuple that is one branch-free count per descriptor asked about and one look-up per tree,
+/// instead of four dependent comparisons per tree. The same leaves as [`Tree::leaf`].
+#[derive(Debug, Clone, PartialEq, Default)]
+struct SplitMasks {
+    /// Per descriptor asked about: its index, its distinct finite thresholds ascending, and
+    /// the first of its rows in `rows` (one row per count of thresholds below, 0..=len).
+    features: Vec<(usize, Vec<f64>, usize)>,
+    /// u64 words per row.
+    words: usize,
+    rows: Vec<u64>,
+    /// Per tree its leaves, single precision (a sum of order one carries rounding near 10⁻⁶,
+    /// far below the 10⁻² at which the order matters).
+    leaves: Vec<[f32; LEAVES]>,
 }
 
-impl CompactTree {
-    fn new(t: &Tree) -> CompactTree {
-        CompactTree {
-            features: t
-                .features
-                .map(|f| u8::try_from(f).expect("descriptor index below 256")),
-            thresholds: t.thresholds,
-            leaves: t.leaves.map(|v| v as f32),
+/// Most trees a mask holds (16 words on the stack); more are split into several masks.
+const MASK_TREES: usize = 256;
+/// Trees per mask word (four bits each).
+const TREES_PER_WORD: usize = 64 / DEPTH;
+
+impl SplitMasks {
+    fn new(trees: &[Tree]) -> SplitMasks {
+        let words = (DEPTH * trees.len()).div_ceil(64);
+        let mut by_feature: Vec<(usize, Vec<f64>)> = Vec::new();
+        for t in trees {
+            for (&f, &th) in t.features.iter().zip(&t.thresholds) {
+                if !th.is_finite() {
+                    continue;
+                }
+                match by_feature.iter_mut().find(|e| e.0 == f) {
+                    Some(e) => e.1.push(th),
+                    None => by_feature.push((f, vec![th])),
+                }
+            }
+        }
+        by_feature.sort_by_key(|e| e.0);
+        let mut features = Vec::with_capacity(by_feature.len());
+        let mut rows = Vec::new();
+        for (f, mut v) in by_feature {
+            v.sort_by(f64::total_cmp);
+            v.dedup();
+            let first = rows.len() / words.max(1);
+            for below in 0..=v.len() {
+                let mut row = vec![0u64; words];
+                for (ti, t) in trees.iter().enumerate() {
+                    for k in 0..DEPTH {
+                        if t.features[k] == f && t.thresholds[k].is_finite() {
+                            let r = v
+                                .binary_search_by(|a| a.total_cmp(&t.thresholds[k]))
+                                .expect("collected");
+                            if r < below {
+                                let bit = DEPTH * ti + k;
+                                row[bit / 64] |= 1 << (bit % 64);
+                            }
+                        }
+                    }
+                }
+                rows.extend(row);
+            }
+            features.push((f, v, first));
+        }
+        SplitMasks {
+            features,
+            words,
+            rows,
+            leaves: trees.iter().map(|t| t.leaves.map(|v| v as f32)).collect(),
         }
     }
 
     #[inline]
-    fn value(&self, x: &[f64]) -> f32 {
-        let mut idx = 0;
-        for k in 0..DEPTH {
-            idx |= usize::from(x[usize::from(self.features[k])] > self.thresholds[k]) << k;
+    fn value(&self, x: &[f64]) -> f64 {
+        let mut mask = [0u64; MASK_TREES * DEPTH / 64];
+        let mask = &mut mask[..self.words];
+        for (f, thresholds, first) in &self.features {
+            let v = x[*f];
+            let below: usize = thresholds.iter().map(|&t| usize::from(v > t)).sum();
+            let row = &self.rows[(first + below) * self.words..][..self.words];
+            for (m, r) in mask.iter_mut().zip(row) {
+                *m |= r;
+            }
         }
-        self.leaves[idx]
+        let mut sum = 0.0f32;
+        for (word, leaves) in mask.iter().zip(self.leaves.chunks(TREES_PER_WORD)) {
+            let mut m = *word;
+            for l in leaves {
+                sum += l[m as usize & (LEAVES - 1)];
+                m >>= DEPTH;
+            }
+        }
+        f64::from(sum)
     }
 }
 
@@ -436,7 +504,7 @@ impl Forest {
         }
         Forest {
             tables,
-            compact: rest.iter().map(CompactTree::new).collect(),
+            masks: rest.chunks(MASK_TREES).map(SplitMasks::new).collect(),
             trees: rest,
         }
     }
@@ -453,8 +521,8 @@ impl Forest {
 
     #[inline]
     pub fn value(&self, x: &[f64]) -> f64 {
-        let trees: f32 = self.compact.iter().map(|t| t.value(x)).sum();
-        self.tables.iter().map(|t| t.value(x)).sum::<f64>() + f64::from(trees)
+        self.tables.iter().map(|t| t.value(x)).sum::<f64>()
+            + self.masks.iter().map(|m| m.value(x)).sum::<f64>()
     }
 }
 
