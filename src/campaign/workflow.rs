@@ -32,7 +32,7 @@
 //! pass_fraction = 0.01              # build and estimate only the best 1 % of tuples
 //! # model = "my-fast-tier.toml"     # fitted model (default: the shipped data/fast-tier.toml)
 //! # trees = false                   # order by the screen score without its boosted trees:
-//! #                                 # about 3x faster per tuple, 91 % instead of 95 % of the
+//! #                                 # about 4x faster per tuple, 90 % instead of 97 % of the
 //! #                                 # π tier's top 100 kept at 10 % pass (held-out library)
 //!
 //! [estimate]                        # π-tier estimate of every candidate in the store
@@ -190,9 +190,9 @@ pub struct ScreenStage {
     pub pass_fraction: f64,
     /// A fitted model file; None = the shipped `data/fast-tier.toml`.
     pub model: Option<PathBuf>,
-    /// Add the screen score's boosted trees (default): on the held-out library 95 % of the
-    /// π tier's top 100 kept at 10 % pass instead of 91 %, at about 3.7 M instead of 11 M
-    /// tuples/s per core (the enumerator, at about 0.3 M/s, bounds the stage either way).
+    /// Add the screen score's boosted trees (default): on the held-out library 97 % of the
+    /// π tier's top 100 kept at 10 % pass instead of 90 %, at about a quarter of the speed
+    /// per core (DEVELOPERS.md; the enumerator, at about 0.3 M/s, bounds the stage either way).
     pub trees: bool,
     /// Temperature (K) and refractive index of the merit: the estimate stage's values.
     pub temperature_k: f64,
