@@ -5,15 +5,14 @@
 //! loops: `examples/fast_tier_profile.rs`.
 //! Target (issue 5): ≥ 10^7 tuples/s per core, no allocation per tuple. Measured with the
 //! screen score's boosted trees (the default) and without (`[screen] trees = false`).
-use std::ops::ControlFlow;
-
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 
-use lumisift::combine::{DnAMode, EnumerateParams, Enumerator, TupleEvent};
 use lumisift::fast::{CardSet, Describer, FastModel};
-use lumisift::model::Architecture;
 use lumisift::pi::params::PppParams;
+
+#[path = "support/fast_tuples.rs"]
+mod fast_tuples;
 
 fn bench(c: &mut Criterion) {
     let lib = lumisift::fragments::load_paths(&["fragments".into()]).unwrap();
@@ -21,31 +20,7 @@ fn bench(c: &mut Criterion) {
     let bound = FastModel::default_model().bind(&set, 1.7, 300.0);
     let mut ridge_only = bound.clone();
     ridge_only.drop_trees();
-    let params = EnumerateParams {
-        architectures: Architecture::ALL.to_vec(),
-        dn_a_max: 4,
-        dn_a_mode: DnAMode::Mixed,
-        ..EnumerateParams::default()
-    };
-    let en = Enumerator::new(&lib, &params).unwrap();
-    // Blocks of 1,000 consecutive admitted tuples, one block in every 7,000: every
-    // architecture is represented and each block is the stream the screen meets (the screen
-    // describes tuples in enumeration order, reusing unchanged arms).
-    let mut tuples = Vec::new();
-    let mut k = 0usize;
-    en.for_each(|e| {
-        if let TupleEvent::Admitted(t) = e {
-            if k % 7000 < 1000 {
-                tuples.push(t);
-            }
-            k += 1;
-        }
-        if tuples.len() >= 100_000 {
-            ControlFlow::Break(())
-        } else {
-            ControlFlow::Continue(())
-        }
-    });
+    let tuples = fast_tuples::tuples(&lib, false);
     let mut g = c.benchmark_group("fast tier");
     g.throughput(Throughput::Elements(tuples.len() as u64));
     for (name, model) in [("score", &bound), ("score without trees", &ridge_only)] {

@@ -12,12 +12,13 @@
 //! 7,000, so every architecture is represented and each block is the stream the screen meets;
 //! `every7` takes every 7th tuple instead (no two consecutive).
 use std::hint::black_box;
-use std::ops::ControlFlow;
 
-use lumisift::combine::{DnAMode, EnumerateParams, Enumerator, Tuple, TupleEvent};
+use lumisift::combine::Tuple;
 use lumisift::fast::{BoundModel, CardSet, Describer, FastModel, N_FEATURES};
-use lumisift::model::Architecture;
 use lumisift::pi::params::PppParams;
+
+#[path = "../benches/support/fast_tuples.rs"]
+mod fast_tuples;
 
 #[inline(never)]
 fn loop_descriptors(set: &CardSet, tuples: &[Tuple]) -> f64 {
@@ -61,38 +62,9 @@ fn main() {
     let bound = FastModel::default_model().bind(&set, 1.7, 300.0);
     let mut ridge_only = bound.clone();
     ridge_only.drop_trees();
-    let params = EnumerateParams {
-        architectures: Architecture::ALL.to_vec(),
-        dn_a_max: 4,
-        dn_a_mode: DnAMode::Mixed,
-        ..EnumerateParams::default()
-    };
-    let en = Enumerator::new(&lib, &params).expect("enumerator");
     let arg = std::env::args().nth(1).unwrap_or_default();
-    // The benchmark's stream: blocks of 1,000 consecutive admitted tuples, one block in every
-    // 7,000 (so every architecture is represented, each block as the screen meets it);
-    // `every7`: every 7th tuple instead (no two consecutive).
     let every7 = std::env::args().any(|a| a == "every7");
-    let mut tuples = Vec::new();
-    let mut k = 0usize;
-    en.for_each(|e| {
-        if let TupleEvent::Admitted(t) = e {
-            let take = if every7 {
-                k.is_multiple_of(7)
-            } else {
-                k % 7000 < 1000
-            };
-            if take {
-                tuples.push(t);
-            }
-            k += 1;
-        }
-        if tuples.len() >= 100_000 {
-            ControlFlow::Break(())
-        } else {
-            ControlFlow::Continue(())
-        }
-    });
+    let tuples = fast_tuples::tuples(&lib, every7);
     println!("{} tuples", tuples.len());
     let time = |name: &str, f: &dyn Fn() -> f64| {
         let t0 = std::time::Instant::now();
