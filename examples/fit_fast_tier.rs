@@ -190,7 +190,7 @@ fn main() {
         "{} tables ({} cells), {} trees evaluated one by one",
         forest.tables().len(),
         forest.tables().iter().map(|t| t.len()).sum::<usize>(),
-        forest.trees().len()
+        forest.n_trees()
     );
     let ev = evaluate(&test, &bound);
     println!("fit {} / test {}", fit.len(), test.len());

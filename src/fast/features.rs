@@ -266,11 +266,6 @@ impl<'a> Describer<'a> {
         }
     }
 
-    /// The card set this describer reads.
-    pub fn cards(&self) -> &'a CardSet {
-        self.cards
-    }
-
     /// Summarise `t` and write its descriptors into `x` (see [`describe`]).
     #[inline]
     pub fn describe(&mut self, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option<TupleSummary> {

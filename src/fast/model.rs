@@ -94,6 +94,18 @@ pub struct ScreenFit {
     pub tree_groups: Vec<Vec<usize>>,
 }
 
+impl ScreenFit {
+    /// The settings this fit was made with (to refit it).
+    pub fn settings(&self) -> super::fit::ScreenSettings {
+        super::fit::ScreenSettings {
+            floor_quantile: self.floor_quantile,
+            products: self.products,
+            boost: self.boost,
+            tree_groups: self.tree_groups.clone(),
+        }
+    }
+}
+
 /// How the model was fitted and how it did on tuples it was not fitted on.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -324,9 +336,7 @@ impl BoundModel {
     /// fragment was outside the fit: the screen's fast path.
     #[inline]
     pub fn score(&self, cards: &CardSet, t: &Tuple) -> Option<(f64, bool)> {
-        let mut x = [0.0; N_FEATURES];
-        let s = describe(cards, t, &mut x)?;
-        Some(self.score_descriptors(&x, &s))
+        self.score_stream(&mut Describer::new(cards), t)
     }
 
     /// [`Self::score`] through a [`Describer`], which reuses the arm look-ups of the tuple

@@ -224,6 +224,65 @@ pub fn predict(trees: &[Tree], x: &[f64]) -> f64 {
     trees.iter().map(|t| t.leaves[t.leaf(x)]).sum()
 }
 
+/// The threshold grid of a set of trees: the descriptors their finite splits ask about
+/// (ascending), each descriptor's distinct finite thresholds (ascending), and every split as
+/// (slot in the descriptor list, rank of its threshold), None for a split with an infinite
+/// threshold (a tree that stopped early: it never goes right). A split goes right exactly
+/// when the count of its descriptor's thresholds below the value exceeds its rank.
+struct Grid {
+    features: Vec<usize>,
+    thresholds: Vec<Vec<f64>>,
+    splits: Vec<[Option<(usize, usize)>; DEPTH]>,
+}
+
+impl Grid {
+    fn new(trees: &[Tree]) -> Grid {
+        let finite = || {
+            trees.iter().flat_map(|t| {
+                t.features
+                    .iter()
+                    .zip(&t.thresholds)
+                    .filter(|(_, t)| t.is_finite())
+                    .map(|(&f, &t)| (f, t))
+            })
+        };
+        let mut features: Vec<usize> = finite().map(|(f, _)| f).collect();
+        features.sort_unstable();
+        features.dedup();
+        let thresholds: Vec<Vec<f64>> = features
+            .iter()
+            .map(|&f| {
+                let mut v: Vec<f64> = finite().filter(|s| s.0 == f).map(|s| s.1).collect();
+                v.sort_by(f64::total_cmp);
+                v.dedup();
+                v
+            })
+            .collect();
+        let rank = |f: usize, t: f64| {
+            let k = features.binary_search(&f).expect("collected");
+            let r = thresholds[k]
+                .binary_search_by(|a| a.total_cmp(&t))
+                .expect("collected");
+            (k, r)
+        };
+        let splits = trees
+            .iter()
+            .map(|t| {
+                std::array::from_fn(|d| {
+                    t.thresholds[d]
+                        .is_finite()
+                        .then(|| rank(t.features[d], t.thresholds[d]))
+                })
+            })
+            .collect();
+        Grid {
+            features,
+            thresholds,
+            splits,
+        }
+    }
+}
+
 /// Most cells a forest is tabulated into: one f32 each, 512 KiB, within the L2 cache of a
 /// current x86 core (a choice of this tool; a larger forest is evaluated tree by tree).
 pub const MAX_TABLE_CELLS: usize = 1 << 17;
@@ -253,28 +312,13 @@ impl Table {
     /// Tabulate `trees`; None when the grid would exceed [`MAX_TABLE_CELLS`] cells or a
     /// descriptor has more than [`MAX_TABLE_THRESHOLDS`] thresholds.
     pub fn compile(trees: &[Tree]) -> Option<Table> {
-        // Splits with an infinite threshold (a tree that stopped early) never go right.
-        let splits = || {
-            trees.iter().flat_map(|t| {
-                t.features
-                    .iter()
-                    .zip(&t.thresholds)
-                    .filter(|(_, t)| t.is_finite())
-                    .map(|(&f, &t)| (f, t))
-            })
-        };
-        let mut features: Vec<usize> = splits().map(|(f, _)| f).collect();
-        features.sort_unstable();
-        features.dedup();
-        let mut sorted: Vec<Vec<f64>> = Vec::with_capacity(features.len());
-        for &f in &features {
-            let mut v: Vec<f64> = splits().filter(|s| s.0 == f).map(|s| s.1).collect();
-            v.sort_by(f64::total_cmp);
-            v.dedup();
-            if v.len() > MAX_TABLE_THRESHOLDS {
-                return None;
-            }
-            sorted.push(v);
+        let Grid {
+            features,
+            thresholds: sorted,
+            splits: coded,
+        } = Grid::new(trees);
+        if sorted.iter().any(|v| v.len() > MAX_TABLE_THRESHOLDS) {
+            return None;
         }
         let mut n_cells = 1usize;
         let mut strides = vec![0; features.len()];
@@ -285,25 +329,6 @@ impl Table {
                 return None;
             }
         }
-        // Each split as (slot in `features`, rank of its threshold): x > t_k exactly when the
-        // count of the descriptor's thresholds below x exceeds t_k's rank.
-        let rank = |f: usize, t: f64| {
-            let k = features.binary_search(&f).expect("collected");
-            let r = sorted[k]
-                .binary_search_by(|a| a.total_cmp(&t))
-                .expect("collected");
-            (k, r)
-        };
-        let coded: Vec<[Option<(usize, usize)>; DEPTH]> = trees
-            .iter()
-            .map(|t| {
-                std::array::from_fn(|d| {
-                    t.thresholds[d]
-                        .is_finite()
-                        .then(|| rank(t.features[d], t.thresholds[d]))
-                })
-            })
-            .collect();
         let mut bins = vec![0usize; features.len()];
         let cells = (0..n_cells)
             .map(|c| {
@@ -374,8 +399,7 @@ impl Table {
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Forest {
     tables: Vec<Table>,
-    trees: Vec<Tree>,
-    /// `trees` as the hot path reads them, in masks of at most [`MASK_TREES`] trees.
+    /// The trees not tabulated, in masks of at most [`MASK_TREES`] trees.
     masks: Vec<SplitMasks>,
 }
 
@@ -406,37 +430,18 @@ const TREES_PER_WORD: usize = 64 / DEPTH;
 impl SplitMasks {
     fn new(trees: &[Tree]) -> SplitMasks {
         let words = (DEPTH * trees.len()).div_ceil(64);
-        let mut by_feature: Vec<(usize, Vec<f64>)> = Vec::new();
-        for t in trees {
-            for (&f, &th) in t.features.iter().zip(&t.thresholds) {
-                if !th.is_finite() {
-                    continue;
-                }
-                match by_feature.iter_mut().find(|e| e.0 == f) {
-                    Some(e) => e.1.push(th),
-                    None => by_feature.push((f, vec![th])),
-                }
-            }
-        }
-        by_feature.sort_by_key(|e| e.0);
-        let mut features = Vec::with_capacity(by_feature.len());
+        let grid = Grid::new(trees);
+        let mut features = Vec::with_capacity(grid.features.len());
         let mut rows = Vec::new();
-        for (f, mut v) in by_feature {
-            v.sort_by(f64::total_cmp);
-            v.dedup();
+        for (slot, (&f, v)) in grid.features.iter().zip(grid.thresholds).enumerate() {
             let first = rows.len() / words.max(1);
             for below in 0..=v.len() {
                 let mut row = vec![0u64; words];
-                for (ti, t) in trees.iter().enumerate() {
-                    for k in 0..DEPTH {
-                        if t.features[k] == f && t.thresholds[k].is_finite() {
-                            let r = v
-                                .binary_search_by(|a| a.total_cmp(&t.thresholds[k]))
-                                .expect("collected");
-                            if r < below {
-                                let bit = DEPTH * ti + k;
-                                row[bit / 64] |= 1 << (bit % 64);
-                            }
+                for (ti, code) in grid.splits.iter().enumerate() {
+                    for (k, s) in code.iter().enumerate() {
+                        if matches!(*s, Some((sk, r)) if sk == slot && r < below) {
+                            let bit = DEPTH * ti + k;
+                            row[bit / 64] |= 1 << (bit % 64);
                         }
                     }
                 }
@@ -505,7 +510,6 @@ impl Forest {
         Forest {
             tables,
             masks: rest.chunks(MASK_TREES).map(SplitMasks::new).collect(),
-            trees: rest,
         }
     }
 
@@ -514,9 +518,9 @@ impl Forest {
         &self.tables
     }
 
-    /// The trees evaluated one by one.
-    pub fn trees(&self) -> &[Tree] {
-        &self.trees
+    /// Number of trees not tabulated (evaluated through the split masks).
+    pub fn n_trees(&self) -> usize {
+        self.masks.iter().map(|m| m.leaves.len()).sum()
     }
 
     #[inline]
@@ -525,6 +529,11 @@ impl Forest {
             + self.masks.iter().map(|m| m.value(x)).sum::<f64>()
     }
 }
+
+/// The project's seeded generator for synthetic test data.
+#[cfg(test)]
+#[path = "../../tests/support/splitmix.rs"]
+mod splitmix;
 
 #[cfg(test)]
 mod tests {
@@ -536,14 +545,8 @@ mod tests {
     /// seeded random data with two groups of two descriptors, plus a tree outside both groups.
     #[test]
     fn a_tabulated_forest_is_its_trees() {
-        let mut state = 0x2545_f491_4f6c_dd1du64;
-        let mut next = move || {
-            // xorshift64* (Vigna, ACM TOMS 42 (2016) art. 30): test data only.
-            state ^= state >> 12;
-            state ^= state << 25;
-            state ^= state >> 27;
-            (state.wrapping_mul(0x2545_f491_4f6c_dd1d) >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut rng = splitmix::Rng(20261202);
+        let mut next = move || rng.unit();
         let rows: Vec<Vec<f64>> = (0..400).map(|_| (0..5).map(|_| next()).collect()).collect();
         let y: Vec<f64> = rows
             .iter()
@@ -568,7 +571,7 @@ mod tests {
         });
         let forest = Forest::new(&trees, &groups);
         assert_eq!(forest.tables().len(), 2);
-        assert_eq!(forest.trees().len(), 1);
+        assert_eq!(forest.n_trees(), 1);
         let mut points: Vec<Vec<f64>> = (0..2000)
             .map(|_| (0..5).map(|_| next() * 1.2 - 0.1).collect())
             .collect();
@@ -600,7 +603,7 @@ mod tests {
             },
         );
         let f = Forest::new(&wide, &[vec![0, 1, 2, 3, 4]]);
-        assert!(f.tables().is_empty() && f.trees().len() == wide.len());
+        assert!(f.tables().is_empty() && f.n_trees() == wide.len());
         for x in &points {
             let (a, b) = (f.value(x), predict(&wide, x));
             assert!((a - b).abs() < 1e-5, "{a} vs {b} at {x:?}");

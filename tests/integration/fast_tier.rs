@@ -5,7 +5,7 @@
 use std::ops::ControlFlow;
 
 use lumisift::combine::{EnumerateParams, Enumerator, Tuple, TupleEvent};
-use lumisift::fast::fit::{ScreenSettings, evaluate, fit_model, screen_fit};
+use lumisift::fast::fit::{evaluate, fit_model, screen_fit};
 use lumisift::fast::pairs::{PairCache, dimer_jobs};
 use lumisift::fast::{CardSet, Describer, FastModel, N_FEATURES, TupleClass};
 use lumisift::model::Architecture;
@@ -38,15 +38,9 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
     );
     // Refit: the same floor and coefficients (ridge has one solution).
     let ids: Vec<String> = lib.fragments.iter().map(|f| f.id.clone()).collect();
-    let settings = ScreenSettings {
-        floor_quantile: shipped.screen.floor_quantile,
-        products: shipped.screen.products,
-        boost: shipped.screen.boost,
-        tree_groups: shipped.screen.tree_groups.clone(),
-    };
     let sf = screen_fit(
         &fit,
-        &settings,
+        &shipped.screen.settings(),
         shipped.screen.refractive_index,
         shipped.screen.temperature_k,
     );

@@ -1,6 +1,6 @@
 //! SplitMix64 (Steele, Lea & Flood, OOPSLA 2014; constants as published): a fixed, seedable
-//! generator for synthetic test and benchmark data. Shared by `tests/integration/rank.rs` and
-//! `benches/rank.rs`.
+//! generator for synthetic test and benchmark data. Shared by `tests/integration/rank.rs`,
+//! `benches/rank.rs` and the unit tests of `src/fast/trees.rs`.
 
 #![allow(dead_code)]
 
