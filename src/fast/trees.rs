@@ -405,38 +405,126 @@ pub struct Forest {
 
 /// Trees evaluated through one bit mask per tuple: bit 4·t + k says whether tree t's split
 /// at depth k goes right. A descriptor's splits go right exactly for its thresholds below the
-/// value, so counting those thresholds picks one precomputed row of bits per descriptor, and
-/// the rows OR-ed together are the mask; each tree's leaf index is then four bits of it. Per
-/// tuple that is one branch-free count per descriptor asked about and one look-up per tree,
-/// instead of four dependent comparisons per tree. The same leaves as [`Tree::leaf`].
+/// value, so counting those thresholds (a branch-free binary search) picks one precomputed row
+/// of bits per descriptor, and the rows OR-ed together are the mask. Each byte of the mask is
+/// then the leaf indices of two trees, and one table per byte holds the two trees' leaves
+/// summed for every value of the byte. Per tuple that is one search and one row per
+/// descriptor asked about and one look-up per two trees, instead of four dependent
+/// comparisons per tree. The same leaves as [`Tree::leaf`].
 #[derive(Debug, Clone, PartialEq, Default)]
 struct SplitMasks {
-    /// Per descriptor asked about: its index, its distinct finite thresholds ascending, and
-    /// the first of its rows in `rows` (one row per count of thresholds below, 0..=len).
-    features: Vec<(usize, Vec<f64>, usize)>,
-    /// u64 words per row.
-    words: usize,
-    rows: Vec<u64>,
-    /// Per tree its leaves, single precision (a sum of order one carries rounding near 10⁻⁶,
-    /// far below the 10⁻² at which the order matters).
-    leaves: Vec<[f32; LEAVES]>,
+    /// Per descriptor asked about: its index, how its thresholds below a value are counted,
+    /// and the first of its rows in `rows` (one row per count of thresholds below).
+    features: Vec<(usize, Counter, usize)>,
+    rows: Vec<Mask>,
+    /// Per mask byte (two trees), the sum of the two trees' leaves for each value of the
+    /// byte, single precision (a sum of order one carries rounding near 10⁻⁶, far below the
+    /// 10⁻² at which the order matters).
+    pairs: Vec<[f32; 256]>,
+    n_trees: usize,
 }
 
-/// Most trees a mask holds (16 words on the stack); more are split into several masks.
+/// Most trees a mask holds; more are split into several masks.
 const MASK_TREES: usize = 256;
-/// Trees per mask word (four bits each).
-const TREES_PER_WORD: usize = 64 / DEPTH;
+/// u64 words of a mask (four bits a tree). Rows are always this wide, so OR-ing one is a
+/// fixed number of vector instructions.
+const MASK_WORDS: usize = MASK_TREES * DEPTH / 64;
+type Mask = [u64; MASK_WORDS];
+
+/// Counts a descriptor's thresholds below a value in a few instructions: a uniform grid of
+/// cells over the thresholds' range gives, per cell, a lower bound of the count (the
+/// thresholds below the cell before it, so a value a rounding away from a cell edge is still
+/// bounded), and a fixed number of branch-free steps up the sorted thresholds finishes it
+/// (the most thresholds any three neighbouring cells hold). The grid is refined until two
+/// steps suffice or it has 4,096 cells. Exactly the count of `t < v` for every value,
+/// NaN (0) and ±∞ included.
+#[derive(Debug, Clone, PartialEq)]
+struct Counter {
+    lo: f64,
+    /// Cells per unit of the descriptor (0 for a single threshold: one cell).
+    scale: f64,
+    /// Per cell (0..=last), the lower bound of the count.
+    start: Vec<u16>,
+    /// The thresholds ascending, then +∞ (a step never runs past it).
+    thresholds: Vec<f64>,
+    steps: usize,
+}
+
+/// Most cells of a [`Counter`]'s grid (a choice of this tool: 8 KiB of bounds a descriptor).
+const MAX_CELLS: usize = 4096;
+
+impl Counter {
+    /// `thresholds`: distinct, finite, ascending, at least one and fewer than 65,535.
+    fn new(thresholds: Vec<f64>) -> Counter {
+        let n = thresholds.len();
+        assert!(n >= 1 && n < usize::from(u16::MAX));
+        let (lo, hi) = (thresholds[0], thresholds[n - 1]);
+        let count_below = |v: f64| thresholds.partition_point(|&t| t < v);
+        let mut best = None;
+        let mut cells = 64;
+        while n > 1 && hi > lo && cells <= MAX_CELLS {
+            let scale = cells as f64 / (hi - lo);
+            let edge = |c: usize| lo + c as f64 / scale;
+            let start: Vec<u16> = (0..=cells)
+                .map(|c| if c == 0 { 0 } else { count_below(edge(c - 1)) as u16 })
+                .collect();
+            let steps = (0..=cells)
+                .map(|c| {
+                    let upper = if c + 2 > cells { n } else { count_below(edge(c + 2)) };
+                    upper - usize::from(start[c])
+                })
+                .max()
+                .unwrap_or(n);
+            best = Some((scale, start, steps));
+            if steps <= 2 {
+                break;
+            }
+            cells *= 2;
+        }
+        let (scale, start, steps) = best.unwrap_or((0.0, vec![0], n));
+        let mut thresholds = thresholds;
+        thresholds.push(f64::INFINITY);
+        Counter {
+            lo,
+            scale,
+            start,
+            thresholds,
+            steps,
+        }
+    }
+
+    /// The count of thresholds below `v`.
+    #[inline(always)]
+    fn below(&self, v: f64) -> usize {
+        // `as` saturates: below the grid (and NaN) cell 0, above it the last cell. A scale of
+        // 0 makes every value cell 0 (∞·0 is NaN, which also goes to 0).
+        let c = (((v - self.lo) * self.scale) as usize).min(self.start.len() - 1);
+        let mut b = usize::from(self.start[c]);
+        for _ in 0..self.steps {
+            b += usize::from(v > self.thresholds[b]);
+        }
+        b
+    }
+}
+
+/// `mask |= row`, word by word (a fixed count the compiler turns into vector ORs).
+#[inline(always)]
+fn or_into(mask: &mut Mask, row: &Mask) {
+    for i in 0..MASK_WORDS {
+        mask[i] |= row[i];
+    }
+}
 
 impl SplitMasks {
     fn new(trees: &[Tree]) -> SplitMasks {
-        let words = (DEPTH * trees.len()).div_ceil(64);
+        assert!(trees.len() <= MASK_TREES);
         let grid = Grid::new(trees);
         let mut features = Vec::with_capacity(grid.features.len());
         let mut rows = Vec::new();
         for (slot, (&f, v)) in grid.features.iter().zip(grid.thresholds).enumerate() {
-            let first = rows.len() / words.max(1);
+            let first_row = rows.len();
             for below in 0..=v.len() {
-                let mut row = vec![0u64; words];
+                let mut row = [0u64; MASK_WORDS];
                 for (ti, code) in grid.splits.iter().enumerate() {
                     for (k, s) in code.iter().enumerate() {
                         if matches!(*s, Some((sk, r)) if sk == slot && r < below) {
@@ -445,39 +533,49 @@ impl SplitMasks {
                         }
                     }
                 }
-                rows.extend(row);
+                rows.push(row);
             }
-            features.push((f, v, first));
+            features.push((f, Counter::new(v), first_row));
         }
+        let leaf = |t: usize, idx: usize| trees.get(t).map_or(0.0, |t| t.leaves[idx]);
+        // Whole words of tables (a missing tree's leaves are zero), so the sum below runs
+        // eight fixed look-ups a word.
+        let pairs = (0..trees.len().div_ceil(16) * 8)
+            .map(|b| {
+                std::array::from_fn(|byte| {
+                    (leaf(2 * b, byte & (LEAVES - 1)) + leaf(2 * b + 1, byte >> DEPTH)) as f32
+                })
+            })
+            .collect();
         SplitMasks {
             features,
-            words,
             rows,
-            leaves: trees.iter().map(|t| t.leaves.map(|v| v as f32)).collect(),
+            pairs,
+            n_trees: trees.len(),
         }
     }
 
     #[inline]
     fn value(&self, x: &[f64]) -> f64 {
-        let mut mask = [0u64; MASK_TREES * DEPTH / 64];
-        let mask = &mut mask[..self.words];
-        for (f, thresholds, first) in &self.features {
-            let v = x[*f];
-            let below: usize = thresholds.iter().map(|&t| usize::from(v > t)).sum();
-            let row = &self.rows[(first + below) * self.words..][..self.words];
-            for (m, r) in mask.iter_mut().zip(row) {
-                *m |= r;
+        let mut mask = [0u64; MASK_WORDS];
+        for (f, counter, first_row) in &self.features {
+            or_into(&mut mask, &self.rows[first_row + counter.below(x[*f])]);
+        }
+        self.leaf_sum(&mask)
+    }
+
+    /// Σ of the trees' leaves for a mask: one table look-up per byte, into eight partial
+    /// sums (independent chains the CPU overlaps).
+    #[inline(always)]
+    fn leaf_sum(&self, mask: &Mask) -> f64 {
+        let mut acc = [0.0f32; 8];
+        for (word, tables) in mask.iter().zip(self.pairs.chunks_exact(8)) {
+            let bytes = word.to_le_bytes();
+            for k in 0..8 {
+                acc[k] += tables[k][usize::from(bytes[k])];
             }
         }
-        let mut sum = 0.0f32;
-        for (word, leaves) in mask.iter().zip(self.leaves.chunks(TREES_PER_WORD)) {
-            let mut m = *word;
-            for l in leaves {
-                sum += l[m as usize & (LEAVES - 1)];
-                m >>= DEPTH;
-            }
-        }
-        f64::from(sum)
+        f64::from(((acc[0] + acc[1]) + (acc[2] + acc[3])) + ((acc[4] + acc[5]) + (acc[6] + acc[7])))
     }
 }
 
@@ -520,7 +618,7 @@ impl Forest {
 
     /// Number of trees not tabulated (evaluated through the split masks).
     pub fn n_trees(&self) -> usize {
-        self.masks.iter().map(|m| m.leaves.len()).sum()
+        self.masks.iter().map(|m| m.n_trees).sum()
     }
 
     #[inline]
@@ -607,6 +705,39 @@ mod tests {
         for x in &points {
             let (a, b) = (f.value(x), predict(&wide, x));
             assert!((a - b).abs() < 1e-5, "{a} vs {b} at {x:?}");
+        }
+    }
+
+    /// The grid counter gives the count of thresholds below a value exactly (against a
+    /// binary search of the sorted thresholds): at every threshold and the floats either side
+    /// of it, at random values inside and outside the range, at NaN and ±∞; for spread,
+    /// clustered (thresholds a few ulps apart, more than the grid can separate) and single
+    /// thresholds.
+    #[test]
+    fn the_grid_counter_counts_thresholds_below() {
+        let mut rng = splitmix::Rng(20261203);
+        let mut next = move || rng.unit();
+        let spread: Vec<f64> = (0..40).map(|k| k as f64 * 0.37 + 0.05 * next()).collect();
+        let mut clustered: Vec<f64> = (0..20).map(|k| 1.0 + f64::EPSILON * 4.0 * k as f64).collect();
+        clustered.extend([-3.0, 0.5, 7.25, 1e3]);
+        clustered.sort_by(f64::total_cmp);
+        let mut uneven: Vec<f64> = (0..63).map(|_| (next() * 12.0).exp() - 50.0).collect();
+        uneven.sort_by(f64::total_cmp);
+        uneven.dedup();
+        for thresholds in [spread, clustered, uneven, vec![0.25]] {
+            let c = Counter::new(thresholds.clone());
+            let truth = |v: f64| thresholds.partition_point(|&t| t < v);
+            let mut values = vec![f64::NAN, f64::INFINITY, f64::NEG_INFINITY, 0.0, -1e300, 1e300];
+            for &t in &thresholds {
+                values.extend([t, t.next_up(), t.next_down(), t + 1e-9, t - 1e-9]);
+            }
+            let (lo, hi) = (thresholds[0], thresholds[thresholds.len() - 1]);
+            values.extend((0..5000).map(|_| lo - 1.0 + (hi - lo + 2.0) * next()));
+            for v in values {
+                // NaN: no threshold is below it (every comparison false).
+                let want = if v.is_nan() { 0 } else { truth(v) };
+                assert_eq!(c.below(v), want, "{v} among {} thresholds", thresholds.len());
+            }
         }
     }
 
