@@ -91,6 +91,36 @@ pub struct TupleSummary {
     pub class: TupleClass,
     /// The best arm's dimer (by its merit): for [`TupleClass::Dimer`] the tuple's own values.
     pub dimer: PairEntry,
+    /// Where the pair-table descriptors come from: the best dimer's entry (None: no arm's
+    /// dimer is known, the table's neutral entry stands in) and, for a bridged best arm, its
+    /// donor–bridge and bridge–acceptor entries (None: a direct arm, zeros).
+    pub dimer_entry: Option<u32>,
+    pub halves: Option<(u32, u32)>,
+}
+
+/// The descriptors taken from the best dimer's entry ([`dimer_descriptors`]).
+pub const DIMER_FEATURES: [usize; 4] = [16, 17, 18, 19];
+/// The descriptors taken from a bridged best arm's donor–bridge and bridge–acceptor entries
+/// ([`half_descriptors`]; zeros for a direct arm).
+pub const HALF_FEATURES: [[usize; 3]; 2] = [[21, 22, 23], [24, 25, 26]];
+
+/// The best dimer's descriptors, in [`DIMER_FEATURES`] order.
+#[inline(always)]
+pub fn dimer_descriptors(e: &PairEntry) -> [f64; 4] {
+    [e.v.delta_est_ev, e.log10_delta_est, e.log10_f, e.merit]
+}
+
+/// A bridged arm's half-dimer descriptors from its entry (`k`), in [`HALF_FEATURES`] order:
+/// the table's neutral entry stands in for an unknown one.
+#[inline(always)]
+pub fn half_descriptors(cards: &CardSet, k: u32) -> [f64; 3] {
+    let e = &cards.pair_table.entries[k as usize];
+    let e = if e.is_known() {
+        e
+    } else {
+        &cards.pair_fallback
+    };
+    [e.v.s1_ev, e.log10_delta_est, e.log10_f]
 }
 
 /// ln n for the path counts a tuple can have (no logarithm per tuple).
@@ -317,6 +347,7 @@ fn aggregate(
     let mut mixing_sq_sum = 0.0;
     // Running statistics of the arms' known dimers.
     let mut pbest: Option<&PairEntry> = None;
+    let mut pk: Option<u32> = None;
     let mut phalves: Option<(u32, u32)> = None;
     let (mut ps1_min, mut ps1_second, mut pt1_min) = (f64::INFINITY, f64::INFINITY, f64::INFINITY);
     for r in records {
@@ -341,6 +372,7 @@ fn aggregate(
             pt1_min = pt1_min.min(e.v.t1_ev);
             if pbest.is_none_or(|b| e.merit > b.merit) {
                 pbest = Some(e);
+                pk = Some(k);
                 phalves = r.halves;
             }
         }
@@ -363,21 +395,11 @@ fn aggregate(
         pt1_min = pe.v.t1_ev;
     }
     // Halves of a bridged best arm (unknown ones: the fallback); zeros for a direct arm.
-    let half = |e: &PairEntry| {
-        let e = if e.is_known() {
-            e
-        } else {
-            &cards.pair_fallback
-        };
-        [e.v.s1_ev, e.log10_delta_est, e.log10_f]
-    };
     let (db, ba) = match phalves {
-        Some((x, y)) => (
-            half(&cards.pair_table.entries[x as usize]),
-            half(&cards.pair_table.entries[y as usize]),
-        ),
+        Some((x, y)) => (half_descriptors(cards, x), half_descriptors(cards, y)),
         None => ([0.0; 3], [0.0; 3]),
     };
+    let d = dimer_descriptors(&pe);
     let m2 = b.mixing * b.mixing;
     let over = b.gap - s1_min;
     *x = [
@@ -402,10 +424,10 @@ fn aggregate(
         (over - HINGE_KNOTS_EV[1]).max(0.0),
         ps1_min,
         pt1_min,
-        pe.v.delta_est_ev,
-        pe.log10_delta_est,
-        pe.log10_f,
-        pe.merit,
+        d[0],
+        d[1],
+        d[2],
+        d[3],
         (ps1_second - ps1_min).min(SECOND_GAP_CAP_EV),
         db[0],
         db[1],
@@ -430,5 +452,7 @@ fn aggregate(
             TupleClass::MultiArm
         },
         dimer: pe,
+        dimer_entry: pk,
+        halves: phalves,
     })
 }

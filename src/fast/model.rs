@@ -25,8 +25,10 @@ use serde::{Deserialize, Serialize};
 
 use super::cards::CardSet;
 use super::features::{
-    BRIDGE_SLOPE_FEATURES, Describer, FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe,
+    BRIDGE_SLOPE_FEATURES, DIMER_FEATURES, Describer, FEATURE_NAMES, HALF_FEATURES, N_FEATURES,
+    TupleClass, TupleSummary, describe, dimer_descriptors, half_descriptors,
 };
+use super::trees::{Mask, SplitMasks};
 use crate::combine::Tuple;
 
 /// The shipped model.
@@ -49,6 +51,9 @@ pub const TARGETS: [&str; 4] = ["s1_ev", "log10_delta_est", "log10_f", "screen"]
 pub const PRODUCT_FIRST: usize = 14;
 /// Descriptors in the products.
 pub const N_PRODUCT_FEATURES: usize = N_FEATURES - PRODUCT_FIRST;
+/// Width of the bound model's rows of product coefficients: the product descriptors padded
+/// with zeros to a multiple of four single-precision lanes.
+const Q_WIDTH: usize = N_PRODUCT_FEATURES.div_ceil(4) * 4;
 /// Number of products (i ≤ j) in the screen score.
 pub const N_PRODUCTS: usize = N_PRODUCT_FEATURES * (N_PRODUCT_FEATURES + 1) / 2;
 
@@ -170,7 +175,8 @@ pub struct BoundModel {
     /// Single precision: the products' coefficients are of order one and the descriptors
     /// below 20 in magnitude, so the sum carries rounding near 10⁻⁴ at worst on a score whose
     /// ordering matters at 10⁻², and a vector register holds twice as many lanes as in f64.
-    q: [[[f32; N_PRODUCT_FEATURES]; N_PRODUCT_FEATURES]; 2],
+    /// Rows and columns padded with zeros to [`Q_WIDTH`], whole vector registers.
+    q: [[[f32; Q_WIDTH]; N_PRODUCT_FEATURES]; 2],
     slopes: Vec<Option<Slopes>>,
     /// Per library index: Some(terms) when fitted.
     donor: Vec<Option<Terms>>,
@@ -190,6 +196,76 @@ pub struct BoundModel {
     /// Whether the screen score has its products (`q` is zero otherwise).
     products: bool,
     forest: super::trees::Forest,
+    /// The forest's mask rows of the pair-table descriptors per table entry (None when the
+    /// forest is not in that form, or after [`Self::drop_entry_masks`]).
+    entry_masks: Option<EntryMasks>,
+}
+
+/// The screen trees' mask rows of the pair-table descriptors, per entry of the pair table,
+/// computed when the model is bound: a tuple's best dimer and its bridged arm's halves are
+/// table entries, so the rows of those ten descriptors are looked up (three ORs) instead of
+/// counted per tuple. The same mask, so the same score ([`super::trees::SplitMasks`]).
+#[derive(Debug, Clone)]
+struct EntryMasks {
+    /// Per entry, the rows of [`DIMER_FEATURES`] for it as the best dimer.
+    best: Vec<Mask>,
+    /// Per entry, the rows of [`HALF_FEATURES`] for it as donor–bridge and as
+    /// bridge–acceptor half.
+    halves: Vec<[Mask; 2]>,
+    /// The neutral entry as the best dimer (no arm's dimer known).
+    fallback: Mask,
+    /// The halves' zeros of a direct best arm.
+    direct: Mask,
+    /// The descriptors still counted per tuple (slots of the split masks).
+    slots: Vec<usize>,
+}
+
+impl EntryMasks {
+    fn new(masks: &SplitMasks, cards: &CardSet) -> EntryMasks {
+        let rows = |fs: &[usize], v: &[f64]| {
+            let pairs: Vec<(usize, f64)> = fs.iter().copied().zip(v.iter().copied()).collect();
+            masks.rows_of(&pairs)
+        };
+        let entries = &cards.pair_table.entries;
+        let halves = |k: u32| {
+            let h = half_descriptors(cards, k);
+            [rows(&HALF_FEATURES[0], &h), rows(&HALF_FEATURES[1], &h)]
+        };
+        let [db, ba] = [0, 1].map(|i| rows(&HALF_FEATURES[i], &[0.0; 3]));
+        let covered: Vec<usize> = DIMER_FEATURES
+            .iter()
+            .chain(HALF_FEATURES.iter().flatten())
+            .copied()
+            .collect();
+        EntryMasks {
+            best: entries
+                .iter()
+                .map(|e| rows(&DIMER_FEATURES, &dimer_descriptors(e)))
+                .collect(),
+            halves: (0..entries.len()).map(|k| halves(k as u32)).collect(),
+            fallback: rows(&DIMER_FEATURES, &dimer_descriptors(&cards.pair_fallback)),
+            direct: std::array::from_fn(|w| db[w] | ba[w]),
+            slots: masks.slots_except(&covered),
+        }
+    }
+
+    /// The trees' sum for a tuple's descriptors and summary.
+    #[inline]
+    fn value(&self, masks: &SplitMasks, x: &[f64; N_FEATURES], s: &TupleSummary) -> f64 {
+        let best = match s.dimer_entry {
+            Some(k) => &self.best[k as usize],
+            None => &self.fallback,
+        };
+        let halves: Mask = match s.halves {
+            Some((x, y)) => {
+                let (a, b) = (&self.halves[x as usize][0], &self.halves[y as usize][1]);
+                std::array::from_fn(|w| a[w] | b[w])
+            }
+            None => self.direct,
+        };
+        let pre: Mask = std::array::from_fn(|w| best[w] | halves[w]);
+        masks.value_with(x, &pre, &self.slots)
+    }
 }
 
 impl FastModel {
@@ -269,12 +345,13 @@ impl FastModel {
             (crate::photophysics::radiative_rate(1.0, 1.0, n) / 3.0).log10()
         };
         let upper = |c: &Coefficients| {
-            let mut q = [[0.0f32; N_PRODUCT_FEATURES]; N_PRODUCT_FEATURES];
+            let mut q = [[0.0f32; Q_WIDTH]; N_PRODUCT_FEATURES];
             for ((i, j), &v) in products().zip(&c.screen_products) {
                 q[i - PRODUCT_FIRST][j - PRODUCT_FIRST] = v as f32;
             }
             q
         };
+        let forest = super::trees::Forest::new(&self.screen_trees, &self.screen.tree_groups);
         BoundModel {
             w: [block(&self.bridged), block(&self.multi_arm)],
             q: [upper(&self.bridged), upper(&self.multi_arm)],
@@ -296,7 +373,8 @@ impl FastModel {
             screen_shift: ((temperature_k - self.screen.temperature_k).abs() < 0.01)
                 .then(|| merit_const(refractive_index) - merit_const(self.screen.refractive_index)),
             products: self.screen.products,
-            forest: super::trees::Forest::new(&self.screen_trees, &self.screen.tree_groups),
+            entry_masks: forest.single_masks().map(|m| EntryMasks::new(m, cards)),
+            forest,
         }
     }
 }
@@ -325,6 +403,27 @@ impl BoundModel {
     /// top 100 kept at 10 % pass).
     pub fn drop_trees(&mut self) {
         self.forest = super::trees::Forest::default();
+        self.entry_masks = None;
+    }
+
+    /// Evaluate the trees from the descriptors alone, without the per-entry rows computed at
+    /// binding: the reference the faster path is tested against (the same scores).
+    pub fn drop_entry_masks(&mut self) {
+        self.entry_masks = None;
+    }
+
+    /// Whether the screen's trees take the pair-table descriptors' rows per entry.
+    pub fn entry_masks_in_use(&self) -> bool {
+        self.entry_masks.is_some() && self.forest.single_masks().is_some()
+    }
+
+    /// The screen trees' sum for a tuple.
+    #[inline]
+    fn trees(&self, x: &[f64; N_FEATURES], s: &TupleSummary) -> f64 {
+        match (&self.entry_masks, self.forest.single_masks()) {
+            (Some(e), Some(m)) => e.value(m, x, s),
+            _ => self.forest.value(x),
+        }
     }
 
     /// How the screen score's trees are evaluated (for reports and benchmarks).
@@ -365,7 +464,7 @@ impl BoundModel {
             } else {
                 0.0
             };
-            return (y[0] + quad + self.forest.value(x) + shift, unseen);
+            return (y[0] + quad + self.trees(x, s) + shift, unseen);
         }
         let (y, unseen) = self.raw::<3>(x, s, 0);
         let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);
@@ -381,16 +480,16 @@ impl BoundModel {
     #[inline(always)]
     fn quadratic(&self, x: &[f64; N_FEATURES], class: TupleClass) -> f64 {
         let q = &self.q[usize::from(class != TupleClass::Bridged)];
-        let mut z = [0.0f32; N_PRODUCT_FEATURES];
+        let mut z = [0.0f32; Q_WIDTH];
         for (zi, xi) in z.iter_mut().zip(&x[PRODUCT_FIRST..]) {
             *zi = *xi as f32;
         }
         // v = Qᵀz row by row (each step one scaled row added to a register-resident
         // accumulator; no horizontal sums), then z · v.
-        let mut v = [0.0f32; N_PRODUCT_FEATURES];
+        let mut v = [0.0f32; Q_WIDTH];
         for (zi, qi) in z.iter().zip(q) {
-            for (vj, qij) in v.iter_mut().zip(qi) {
-                *vj += zi * qij;
+            for j in 0..Q_WIDTH {
+                v[j] += zi * qi[j];
             }
         }
         f64::from(v.iter().zip(&z).map(|(a, b)| a * b).sum::<f32>())

@@ -412,7 +412,7 @@ pub struct Forest {
 /// descriptor asked about and one look-up per two trees, instead of four dependent
 /// comparisons per tree. The same leaves as [`Tree::leaf`].
 #[derive(Debug, Clone, PartialEq, Default)]
-struct SplitMasks {
+pub(crate) struct SplitMasks {
     /// Per descriptor asked about: its index, how its thresholds below a value are counted,
     /// and the first of its rows in `rows` (one row per count of thresholds below).
     features: Vec<(usize, Counter, usize)>,
@@ -429,7 +429,7 @@ const MASK_TREES: usize = 256;
 /// u64 words of a mask (four bits a tree). Rows are always this wide, so OR-ing one is a
 /// fixed number of vector instructions.
 const MASK_WORDS: usize = MASK_TREES * DEPTH / 64;
-type Mask = [u64; MASK_WORDS];
+pub(crate) type Mask = [u64; MASK_WORDS];
 
 /// Counts a descriptor's thresholds below a value in a few instructions: a uniform grid of
 /// cells over the thresholds' range gives, per cell, a lower bound of the count (the
@@ -466,11 +466,21 @@ impl Counter {
             let scale = cells as f64 / (hi - lo);
             let edge = |c: usize| lo + c as f64 / scale;
             let start: Vec<u16> = (0..=cells)
-                .map(|c| if c == 0 { 0 } else { count_below(edge(c - 1)) as u16 })
+                .map(|c| {
+                    if c == 0 {
+                        0
+                    } else {
+                        count_below(edge(c - 1)) as u16
+                    }
+                })
                 .collect();
             let steps = (0..=cells)
                 .map(|c| {
-                    let upper = if c + 2 > cells { n } else { count_below(edge(c + 2)) };
+                    let upper = if c + 2 > cells {
+                        n
+                    } else {
+                        count_below(edge(c + 2))
+                    };
                     upper - usize::from(start[c])
                 })
                 .max()
@@ -564,6 +574,40 @@ impl SplitMasks {
         self.leaf_sum(&mask)
     }
 
+    /// The rows of the descriptors `values` (index, value) OR-ed together: part of a mask
+    /// computed ahead, for descriptors that come as a group from one source (a descriptor
+    /// no tree asks about adds nothing).
+    pub(crate) fn rows_of(&self, values: &[(usize, f64)]) -> Mask {
+        let mut mask = [0u64; MASK_WORDS];
+        for &(f, v) in values {
+            if let Some((_, counter, first_row)) = self.features.iter().find(|s| s.0 == f) {
+                or_into(&mut mask, &self.rows[first_row + counter.below(v)]);
+            }
+        }
+        mask
+    }
+
+    /// The slots (positions in the descriptor list) of the descriptors asked about that are
+    /// not in `covered`.
+    pub(crate) fn slots_except(&self, covered: &[usize]) -> Vec<usize> {
+        (0..self.features.len())
+            .filter(|&k| !covered.contains(&self.features[k].0))
+            .collect()
+    }
+
+    /// The trees' sum when `pre` holds the rows of every descriptor outside `slots`
+    /// ([`Self::rows_of`]): only the descriptors of `slots` are counted from `x`. The same
+    /// value as [`Self::value`] (the same mask).
+    #[inline]
+    pub(crate) fn value_with(&self, x: &[f64], pre: &Mask, slots: &[usize]) -> f64 {
+        let mut mask = *pre;
+        for &k in slots {
+            let (f, counter, first_row) = &self.features[k];
+            or_into(&mut mask, &self.rows[first_row + counter.below(x[*f])]);
+        }
+        self.leaf_sum(&mask)
+    }
+
     /// Σ of the trees' leaves for a mask: one table look-up per byte, into eight partial
     /// sums (independent chains the CPU overlaps).
     #[inline(always)]
@@ -614,6 +658,16 @@ impl Forest {
     /// The tables (one per tabulated group).
     pub fn tables(&self) -> &[Table] {
         &self.tables
+    }
+
+    /// The forest's split masks when they are all of it (no tables, at most [`MASK_TREES`]
+    /// trees): the form whose masks can be partly computed ahead
+    /// ([`SplitMasks::value_with`]).
+    pub(crate) fn single_masks(&self) -> Option<&SplitMasks> {
+        match (self.tables.is_empty(), self.masks.as_slice()) {
+            (true, [m]) => Some(m),
+            _ => None,
+        }
     }
 
     /// Number of trees not tabulated (evaluated through the split masks).
@@ -718,7 +772,9 @@ mod tests {
         let mut rng = splitmix::Rng(20261203);
         let mut next = move || rng.unit();
         let spread: Vec<f64> = (0..40).map(|k| k as f64 * 0.37 + 0.05 * next()).collect();
-        let mut clustered: Vec<f64> = (0..20).map(|k| 1.0 + f64::EPSILON * 4.0 * k as f64).collect();
+        let mut clustered: Vec<f64> = (0..20)
+            .map(|k| 1.0 + f64::EPSILON * 4.0 * k as f64)
+            .collect();
         clustered.extend([-3.0, 0.5, 7.25, 1e3]);
         clustered.sort_by(f64::total_cmp);
         let mut uneven: Vec<f64> = (0..63).map(|_| (next() * 12.0).exp() - 50.0).collect();
@@ -727,7 +783,14 @@ mod tests {
         for thresholds in [spread, clustered, uneven, vec![0.25]] {
             let c = Counter::new(thresholds.clone());
             let truth = |v: f64| thresholds.partition_point(|&t| t < v);
-            let mut values = vec![f64::NAN, f64::INFINITY, f64::NEG_INFINITY, 0.0, -1e300, 1e300];
+            let mut values = vec![
+                f64::NAN,
+                f64::INFINITY,
+                f64::NEG_INFINITY,
+                0.0,
+                -1e300,
+                1e300,
+            ];
             for &t in &thresholds {
                 values.extend([t, t.next_up(), t.next_down(), t + 1e-9, t - 1e-9]);
             }
@@ -736,7 +799,12 @@ mod tests {
             for v in values {
                 // NaN: no threshold is below it (every comparison false).
                 let want = if v.is_nan() { 0 } else { truth(v) };
-                assert_eq!(c.below(v), want, "{v} among {} thresholds", thresholds.len());
+                assert_eq!(
+                    c.below(v),
+                    want,
+                    "{v} among {} thresholds",
+                    thresholds.len()
+                );
             }
         }
     }
