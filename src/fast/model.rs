@@ -175,7 +175,7 @@ pub struct BoundModel {
     /// Single precision: the products' coefficients are of order one and the descriptors
     /// below 20 in magnitude, so the sum carries rounding near 10⁻⁴ at worst on a score whose
     /// ordering matters at 10⁻², and a vector register holds twice as many lanes as in f64.
-    /// Rows and columns padded with zeros to [`Q_WIDTH`], whole vector registers.
+    /// Each row padded with zeros to [`Q_WIDTH`] columns, whole vector registers.
     q: [[[f32; Q_WIDTH]; N_PRODUCT_FEATURES]; 2],
     slopes: Vec<Option<Slopes>>,
     /// Per library index: Some(terms) when fitted.
