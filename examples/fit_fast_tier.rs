@@ -187,7 +187,7 @@ fn main() {
     let bound = model.bind(set, fasttier::N_HOST, fasttier::T_K);
     let forest = bound.forest();
     println!(
-        "{} tables ({} cells), {} trees evaluated one by one",
+        "{} tables ({} cells), {} trees through split masks",
         forest.tables().len(),
         forest.tables().iter().map(|t| t.len()).sum::<usize>(),
         forest.n_trees()

@@ -414,7 +414,7 @@ impl BoundModel {
 
     /// Whether the screen's trees take the pair-table descriptors' rows per entry.
     pub fn entry_masks_in_use(&self) -> bool {
-        self.entry_masks.is_some() && self.forest.single_masks().is_some()
+        self.entry_masks.is_some()
     }
 
     /// The screen trees' sum for a tuple.

@@ -286,10 +286,6 @@ impl Grid {
 /// Most cells a forest is tabulated into: one f32 each, 512 KiB, within the L2 cache of a
 /// current x86 core (a choice of this tool; a larger forest is evaluated tree by tree).
 pub const MAX_TABLE_CELLS: usize = 1 << 17;
-/// Most distinct thresholds of one descriptor in a table. Each descriptor's thresholds are
-/// padded with +∞ to 16, so the count below a value is a four-step branch-free binary search.
-pub const MAX_TABLE_THRESHOLDS: usize = 15;
-const PADDED: usize = 16;
 
 /// A forest tabulated on the grid its thresholds cut: a forest that asks about few
 /// descriptors, each at few thresholds, is a piecewise-constant function of the bins those
@@ -301,25 +297,21 @@ const PADDED: usize = 16;
 pub struct Table {
     /// The descriptors the trees ask about, ascending.
     features: Vec<usize>,
-    /// Per descriptor: its distinct thresholds, ascending, padded with +∞.
-    thresholds: Vec<[f64; PADDED]>,
+    /// Per descriptor: how its thresholds below a value are counted.
+    counters: Vec<Counter>,
     /// Cell index step per descriptor (row-major over `features`).
     strides: Vec<usize>,
     cells: Vec<f32>,
 }
 
 impl Table {
-    /// Tabulate `trees`; None when the grid would exceed [`MAX_TABLE_CELLS`] cells or a
-    /// descriptor has more than [`MAX_TABLE_THRESHOLDS`] thresholds.
+    /// Tabulate `trees`; None when the grid would exceed [`MAX_TABLE_CELLS`] cells.
     pub fn compile(trees: &[Tree]) -> Option<Table> {
         let Grid {
             features,
             thresholds: sorted,
             splits: coded,
         } = Grid::new(trees);
-        if sorted.iter().any(|v| v.len() > MAX_TABLE_THRESHOLDS) {
-            return None;
-        }
         let mut n_cells = 1usize;
         let mut strides = vec![0; features.len()];
         for (k, v) in sorted.iter().enumerate().rev() {
@@ -351,13 +343,9 @@ impl Table {
                 sum as f32
             })
             .collect();
-        let thresholds = sorted
-            .iter()
-            .map(|v| std::array::from_fn(|i| v.get(i).copied().unwrap_or(f64::INFINITY)))
-            .collect();
         Some(Table {
             features,
-            thresholds,
+            counters: sorted.into_iter().map(Counter::new).collect(),
             strides,
             cells,
         })
@@ -376,19 +364,8 @@ impl Table {
     #[inline]
     pub fn value(&self, x: &[f64]) -> f64 {
         let mut i = 0;
-        for ((&f, thr), &s) in self
-            .features
-            .iter()
-            .zip(&self.thresholds)
-            .zip(&self.strides)
-        {
-            let v = x[f];
-            // Thresholds below v (ascending, thr[15] = +∞): lower bound in four halvings.
-            let mut b = usize::from(v > thr[7]) * 8;
-            b += usize::from(v > thr[b + 3]) * 4;
-            b += usize::from(v > thr[b + 1]) * 2;
-            b += usize::from(v > thr[b]);
-            i += b * s;
+        for ((&f, counter), &s) in self.features.iter().zip(&self.counters).zip(&self.strides) {
+            i += counter.below(x[f]) * s;
         }
         f64::from(self.cells[i])
     }
@@ -405,10 +382,10 @@ pub struct Forest {
 
 /// Trees evaluated through one bit mask per tuple: bit 4·t + k says whether tree t's split
 /// at depth k goes right. A descriptor's splits go right exactly for its thresholds below the
-/// value, so counting those thresholds (a branch-free binary search) picks one precomputed row
-/// of bits per descriptor, and the rows OR-ed together are the mask. Each byte of the mask is
+/// value, so counting those thresholds ([`Counter`]) picks one precomputed row of bits per
+/// descriptor, and the rows OR-ed together are the mask. Each byte of the mask is
 /// then the leaf indices of two trees, and one table per byte holds the two trees' leaves
-/// summed for every value of the byte. Per tuple that is one search and one row per
+/// summed for every value of the byte. Per tuple that is one count and one row per
 /// descriptor asked about and one look-up per two trees, instead of four dependent
 /// comparisons per tree. The same leaves as [`Tree::leaf`].
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -435,8 +412,8 @@ pub(crate) type Mask = [u64; MASK_WORDS];
 /// cells over the thresholds' range gives, per cell, a lower bound of the count (the
 /// thresholds below the cell before it, so a value a rounding away from a cell edge is still
 /// bounded), and a fixed number of branch-free steps up the sorted thresholds finishes it
-/// (the most thresholds any three neighbouring cells hold). The grid is refined until two
-/// steps suffice or it has 4,096 cells. Exactly the count of `t < v` for every value,
+/// (the most thresholds any three neighbouring cells hold). The grid starts at 64 cells and
+/// is doubled until two steps suffice or it has [`MAX_CELLS`] (both choices of this tool). Exactly the count of `t < v` for every value,
 /// NaN (0) and ±∞ included.
 #[derive(Debug, Clone, PartialEq)]
 struct Counter {
@@ -484,7 +461,7 @@ impl Counter {
                     upper - usize::from(start[c])
                 })
                 .max()
-                .unwrap_or(n);
+                .expect("at least one cell");
             best = Some((scale, start, steps));
             if steps <= 2 {
                 break;
@@ -565,11 +542,18 @@ impl SplitMasks {
         }
     }
 
+    /// The row of descriptor slot `k` (a position in `features`) at value `v`.
+    #[inline(always)]
+    fn row(&self, k: usize, v: f64) -> &Mask {
+        let (_, counter, first_row) = &self.features[k];
+        &self.rows[first_row + counter.below(v)]
+    }
+
     #[inline]
     fn value(&self, x: &[f64]) -> f64 {
         let mut mask = [0u64; MASK_WORDS];
-        for (f, counter, first_row) in &self.features {
-            or_into(&mut mask, &self.rows[first_row + counter.below(x[*f])]);
+        for (k, (f, _, _)) in self.features.iter().enumerate() {
+            or_into(&mut mask, self.row(k, x[*f]));
         }
         self.leaf_sum(&mask)
     }
@@ -580,8 +564,8 @@ impl SplitMasks {
     pub(crate) fn rows_of(&self, values: &[(usize, f64)]) -> Mask {
         let mut mask = [0u64; MASK_WORDS];
         for &(f, v) in values {
-            if let Some((_, counter, first_row)) = self.features.iter().find(|s| s.0 == f) {
-                or_into(&mut mask, &self.rows[first_row + counter.below(v)]);
+            if let Some(k) = self.features.iter().position(|s| s.0 == f) {
+                or_into(&mut mask, self.row(k, v));
             }
         }
         mask
@@ -602,8 +586,7 @@ impl SplitMasks {
     pub(crate) fn value_with(&self, x: &[f64], pre: &Mask, slots: &[usize]) -> f64 {
         let mut mask = *pre;
         for &k in slots {
-            let (f, counter, first_row) = &self.features[k];
-            or_into(&mut mask, &self.rows[first_row + counter.below(x[*f])]);
+            or_into(&mut mask, self.row(k, x[self.features[k].0]));
         }
         self.leaf_sum(&mask)
     }

@@ -436,61 +436,13 @@ fn screen_settings_are_checked() {
     assert!(wf.screen.expect("screen").trees, "trees by default");
 }
 
-/// The screen's trees with the pair-table descriptors' mask rows looked up per entry (computed
-/// when the model is bound) give exactly the scores of the trees counted from the descriptors
-/// alone, over every architecture of the library: best dimers known and unknown, bridged best
-/// arms (halves known or standing in) and direct ones.
-#[test]
-fn the_trees_per_entry_rows_give_the_same_scores() {
-    let lib = fasttier::library();
-    let set = fasttier::cards();
-    let model = FastModel::default_model();
-    let fast = model.bind(
-        set,
-        model.screen.refractive_index,
-        model.screen.temperature_k,
-    );
-    assert!(
-        fast.entry_masks_in_use(),
-        "the shipped forest takes per-entry rows"
-    );
-    let mut reference = fast.clone();
-    reference.drop_entry_masks();
-    assert!(!reference.entry_masks_in_use());
-    let params = EnumerateParams {
-        architectures: Architecture::ALL.to_vec(),
-        max_mol_weight: 800.0,
-        ..EnumerateParams::default()
-    };
-    let en = Enumerator::new(lib, &params).unwrap();
-    let (mut d, mut r) = (Describer::new(set), Describer::new(set));
-    // (bridged best arm, direct best arm, no dimer known)
-    let mut seen = [0usize; 3];
-    en.for_each(|e| {
-        if let TupleEvent::Admitted(t) = e {
-            let mut x = [0.0; N_FEATURES];
-            if let Some(s) = lumisift::fast::describe(set, &t, &mut x)
-                && s.class != lumisift::fast::TupleClass::Dimer
-            {
-                seen[0] += usize::from(s.halves.is_some());
-                seen[1] += usize::from(s.halves.is_none() && s.dimer_entry.is_some());
-                seen[2] += usize::from(s.dimer_entry.is_none());
-            }
-            let (a, b) = (
-                fast.score_stream(&mut d, &t),
-                reference.score_stream(&mut r, &t),
-            );
-            assert_eq!(a.map(|v| v.0.to_bits()), b.map(|v| v.0.to_bits()), "{t:?}");
-        }
-        ControlFlow::Continue(())
-    });
-    assert!(seen[0] > 100 && seen[1] > 100 && seen[2] > 0, "{seen:?}");
-}
-
 /// The screen's fast path gives the full prediction's ordering key: at the score's own
 /// temperature the screen score (shifted by the refractive index's log10 n² alone), at another
 /// temperature the merit rewritten in logarithms (no f or ΔEST formed), equal to
-/// `photophysics::log10_tadf_rate` of the predicted S1, ΔEST and f.
+/// `photophysics::log10_tadf_rate` of the predicted S1, ΔEST and f. The screen's trees with
+/// the pair-table descriptors' mask rows looked up per entry (computed when the model is
+/// bound) give exactly the scores of the trees counted from the descriptors alone, with best
+/// dimers known and unknown, bridged best arms (halves known or standing in) and direct ones.
 #[test]
 fn the_fast_score_equals_the_full_prediction() {
     let lib = fasttier::library();
@@ -501,6 +453,13 @@ fn the_fast_score_equals_the_full_prediction() {
         model.screen.refractive_index,
         model.screen.temperature_k,
     );
+    assert!(
+        at_fit.entry_masks_in_use(),
+        "the shipped forest takes per-entry rows"
+    );
+    let mut counted = at_fit.clone();
+    counted.drop_entry_masks();
+    assert!(!counted.entry_masks_in_use());
     let denser = model.bind(set, 1.8, model.screen.temperature_k);
     let warmer = model.bind(set, 1.8, 320.0);
     // k_r ∝ n² (Strickler–Berg / Einstein A): every score moves by 2·log10(1.8/n_fit).
@@ -516,6 +475,9 @@ fn the_fast_score_equals_the_full_prediction() {
     // numbers of a fresh description, on the enumeration's own order and on every third tuple.
     let mut stream = Describer::new(set);
     let mut skipping = Describer::new(set);
+    let mut counting = Describer::new(set);
+    // (bridged best arm, direct best arm, no dimer known) among the fitted classes
+    let mut seen = [0usize; 3];
     en.for_each(|e| {
         if let TupleEvent::Admitted(t) = e {
             n += 1;
@@ -523,7 +485,22 @@ fn the_fast_score_equals_the_full_prediction() {
             let fresh = lumisift::fast::describe(set, &t, &mut x);
             assert_eq!(stream.describe(&t, &mut y), fresh);
             assert_eq!(x.map(f64::to_bits), y.map(f64::to_bits));
-            assert_eq!(at_fit.score_stream(&mut stream, &t), at_fit.score(set, &t));
+            let streamed = at_fit.score_stream(&mut stream, &t);
+            assert_eq!(streamed, at_fit.score(set, &t));
+            assert_eq!(
+                streamed.map(|v| v.0.to_bits()),
+                counted
+                    .score_stream(&mut counting, &t)
+                    .map(|v| v.0.to_bits()),
+                "{t:?}"
+            );
+            if let Some(s) = fresh
+                && s.class != lumisift::fast::TupleClass::Dimer
+            {
+                seen[0] += usize::from(s.halves.is_some());
+                seen[1] += usize::from(s.halves.is_none() && s.dimer_entry.is_some());
+                seen[2] += usize::from(s.dimer_entry.is_none());
+            }
             if n % 3 == 0 {
                 assert_eq!(skipping.describe(&t, &mut y), fresh);
                 assert_eq!(x.map(f64::to_bits), y.map(f64::to_bits));
@@ -544,4 +521,5 @@ fn the_fast_score_equals_the_full_prediction() {
         ControlFlow::Continue(())
     });
     assert!(n > 1000);
+    assert!(seen[0] > 100 && seen[1] > 100 && seen[2] > 0, "{seen:?}");
 }
