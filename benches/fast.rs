@@ -1,14 +1,15 @@
-//! The fast fragment tier per tuple (descriptors from the card tables + the bound model's
-//! screen score), over 100,000 pre-enumerated tuples of the shipped library (all
-//! architectures, Dn-A up to four mixed donors) in the screen's path
-//! (`BoundModel::score_stream`): `cargo bench --bench fast`. Instruction counts of the same
-//! loops: `examples/fast_tier_profile.rs`.
+//! The fast fragment tier per tuple (the bound model's screen score), over 100,000
+//! pre-enumerated tuples of the shipped library (all architectures, Dn-A up to four mixed
+//! donors) in the screen's path (`fast::Screener`, arm records kept per run of a core), and
+//! through the descriptors (`BoundModel::score_stream`, the reference the screener is tested
+//! against): `cargo bench --bench fast`. Instruction counts of the same loops:
+//! `examples/fast_tier_profile.rs`.
 //! Target (issue 5): ≥ 10^7 tuples/s per core, no allocation per tuple. Measured with the
 //! screen score's boosted trees (the default) and without (`[screen] trees = false`).
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 
-use lumisift::fast::{CardSet, Describer, FastModel};
+use lumisift::fast::{CardSet, Describer, FastModel, Screener};
 use lumisift::pi::params::PppParams;
 
 #[path = "support/fast_tuples.rs"]
@@ -27,9 +28,9 @@ fn bench(c: &mut Criterion) {
         g.bench_function(format!("{name}, {} tuples", tuples.len()), |b| {
             b.iter(|| {
                 let mut s = 0.0;
-                let mut d = Describer::new(&set);
+                let mut screener = Screener::new(model, &set);
                 for t in &tuples {
-                    if let Some((m, _)) = model.score_stream(&mut d, black_box(t)) {
+                    if let Some((m, _)) = screener.score(black_box(t)) {
                         s += m;
                     }
                 }
@@ -37,6 +38,21 @@ fn bench(c: &mut Criterion) {
             })
         });
     }
+    g.bench_function(
+        format!("score from the descriptors, {} tuples", tuples.len()),
+        |b| {
+            b.iter(|| {
+                let mut s = 0.0;
+                let mut d = Describer::new(&set);
+                for t in &tuples {
+                    if let Some((m, _)) = bound.score_stream(&mut d, black_box(t)) {
+                        s += m;
+                    }
+                }
+                black_box(s)
+            })
+        },
+    );
     // The descriptors alone (the card and pair-table look-ups every score starts from).
     g.bench_function(format!("descriptors, {} tuples", tuples.len()), |b| {
         b.iter(|| {

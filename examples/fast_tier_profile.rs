@@ -6,7 +6,9 @@
 //!         target/release/examples/fast_tier_profile score
 //!
 //! Modes: `descriptors` (loop `loop_descriptors`), `score` (`loop_score`, the shipped screen
-//! score), `ridge` (`loop_score_without_trees`); none runs all three. Instructions per tuple
+//! score through the screener, the cascade's path), `ridge` (`loop_score_without_trees`, the
+//! same without the trees), `reference` (`loop_score_from_descriptors`, the score through
+//! the descriptors, what the screener is tested against); none runs all four. Instructions per tuple
 //! = the "Collected" count / the tuple count printed. The tuples are the benchmark's
 //! (`benches/fast.rs`): blocks of 1,000 consecutive admitted tuples, one block in every
 //! 7,000, so every architecture is represented and each block is the stream the screen meets;
@@ -14,7 +16,7 @@
 use std::hint::black_box;
 
 use lumisift::combine::Tuple;
-use lumisift::fast::{BoundModel, CardSet, Describer, FastModel, N_FEATURES};
+use lumisift::fast::{BoundModel, CardSet, Describer, FastModel, N_FEATURES, Screener};
 use lumisift::pi::params::PppParams;
 
 #[path = "../benches/support/fast_tuples.rs"]
@@ -35,6 +37,18 @@ fn loop_descriptors(set: &CardSet, tuples: &[Tuple]) -> f64 {
 
 #[inline(always)]
 fn scores(set: &CardSet, model: &BoundModel, tuples: &[Tuple]) -> f64 {
+    let mut s = 0.0;
+    let mut screener = Screener::new(model, set);
+    for t in tuples {
+        if let Some((m, _)) = screener.score(black_box(t)) {
+            s += m;
+        }
+    }
+    s
+}
+
+#[inline(never)]
+fn loop_score_from_descriptors(set: &CardSet, model: &BoundModel, tuples: &[Tuple]) -> f64 {
     let mut s = 0.0;
     let mut d = Describer::new(set);
     for t in tuples {
@@ -80,6 +94,11 @@ fn main() {
     }
     if arg.is_empty() || arg == "score" {
         time("score", &|| loop_score(&set, &bound, &tuples));
+    }
+    if arg.is_empty() || arg == "reference" {
+        time("score from the descriptors", &|| {
+            loop_score_from_descriptors(&set, &bound, &tuples)
+        });
     }
     if arg.is_empty() || arg == "ridge" {
         time("score without trees", &|| {

@@ -516,14 +516,14 @@ fn screen_select(
             "screen: fast tier over {admitted} admitted tuples, keeping the best {keep} by screen score (log10 k_TADF)"
         );
     }
-    let mut describer = crate::fast::Describer::new(&set);
+    let mut screener = crate::fast::Screener::new(&bound, &set);
     en.for_each(|e| {
         let TupleEvent::Admitted(t) = e else {
             return ControlFlow::Continue(());
         };
         let o = ordinal;
         ordinal += 1;
-        match bound.score_stream(&mut describer, &t) {
+        match screener.score(&t) {
             None => no_path += 1,
             // A prediction outside the model's range (S1 ≤ 0 gives no logarithm) is never
             // passed: NaN would otherwise order above every number.

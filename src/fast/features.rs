@@ -123,6 +123,61 @@ pub fn half_descriptors(cards: &CardSet, k: u32) -> [f64; 3] {
     [e.v.s1_ev, e.log10_delta_est, e.log10_f]
 }
 
+/// The descriptors of the best donor–acceptor path alone ([`path_descriptors`]; the constant
+/// rides with them).
+pub const PATH_FEATURES: [usize; 8] = [0, 1, 2, 3, 4, 5, 10, 11];
+/// The descriptors aggregated over a tuple's arms: ln of the path count, Σ mixing², the
+/// lowest local T1 and S1, the two hinges on gap − local S1, the lowest dimer S1 and T1, and
+/// the gap to the second-lowest dimer S1.
+pub const LN_PATHS: usize = 6;
+pub const MIXING_SQ_SUM: usize = 7;
+pub const LOCAL_T1_MIN: usize = 8;
+pub const LOCAL_S1_MIN: usize = 9;
+pub const HINGES: [usize; 2] = [12, 13];
+pub const PAIR_S1_MIN: usize = 14;
+pub const PAIR_T1_MIN: usize = 15;
+pub const PAIR_S1_SECOND_GAP: usize = 20;
+
+/// The best path's descriptors, in [`PATH_FEATURES`] order.
+#[inline(always)]
+pub(super) fn path_descriptors(p: &Path) -> [f64; 8] {
+    let m2 = p.mixing * p.mixing;
+    [
+        1.0,
+        p.gap,
+        p.mixing,
+        m2,
+        // Single precision: logf is about twice as fast as log, and the descriptor needs no
+        // more than its seven digits.
+        f64::from(((m2 + 1e-4) as f32).ln()),
+        p.gap * m2,
+        if p.bridge.is_some() { 1.0 } else { 0.0 },
+        p.coupling,
+    ]
+}
+
+/// ln of a tuple's path count.
+#[inline(always)]
+pub(super) fn ln_paths(n: usize) -> f64 {
+    LN_SMALL.get(n).copied().unwrap_or((n as f64).ln())
+}
+
+/// The two hinges on the best path's gap − the lowest local S1, in [`HINGES`] order.
+#[inline(always)]
+pub(super) fn hinges(gap: f64, s1_min: f64) -> [f64; 2] {
+    let over = gap - s1_min;
+    [
+        (over - HINGE_KNOTS_EV[0]).max(0.0),
+        (over - HINGE_KNOTS_EV[1]).max(0.0),
+    ]
+}
+
+/// The gap from the lowest to the second-lowest dimer S1, capped.
+#[inline(always)]
+pub(super) fn second_gap(second: f64, min: f64) -> f64 {
+    (second - min).min(SECOND_GAP_CAP_EV)
+}
+
 /// ln n for the path counts a tuple can have (no logarithm per tuple).
 const LN_SMALL: [f64; 7] = [
     f64::NEG_INFINITY,
@@ -136,35 +191,41 @@ const LN_SMALL: [f64; 7] = [
 
 /// One donor–acceptor path.
 #[derive(Clone, Copy, PartialEq)]
-struct Path {
-    gap: f64,
-    coupling: f64,
-    mixing: f64,
-    twist: f64,
-    donor: usize,
-    acceptor: usize,
-    bridge: Option<usize>,
+pub(super) struct Path {
+    pub gap: f64,
+    pub coupling: f64,
+    pub mixing: f64,
+    pub twist: f64,
+    pub donor: usize,
+    pub acceptor: usize,
+    pub bridge: Option<usize>,
 }
 
 /// What one arm of a tuple contributes, from the card and pair tables alone: computed once
 /// per (core, site, arm) and reused while the following tuples keep that arm at that site
 /// (an enumeration changes one arm at a time).
 #[derive(Clone, Copy)]
-struct ArmRecord {
+pub(super) struct ArmRecord {
     /// Lowest local S1 and T1 of the arm's own fragments (+∞ for a hydrogen cap).
-    s1: f64,
-    t1: f64,
+    pub s1: f64,
+    pub t1: f64,
     /// The arm's donor–acceptor path; None for a hydrogen cap or roles that never meet.
-    path: Option<Path>,
-    /// The arm's dimer (pair-table entry index) when its values are known.
-    dimer: Option<u32>,
+    pub path: Option<Path>,
+    /// The arm's dimer (pair-table entry index) when its values are known (only with a path).
+    pub dimer: Option<u32>,
     /// For a bridged arm: its donor–bridge and bridge–acceptor dimers (entry indices, from the
     /// two links' twist-table slots).
-    halves: Option<(u32, u32)>,
+    pub halves: Option<(u32, u32)>,
+}
+
+/// Whether the core of `t` is the donor side of its paths.
+#[inline(always)]
+pub(super) fn core_is_donor(cards: &CardSet, t: &Tuple) -> bool {
+    t.architecture == Architecture::ADA || cards.cards[t.core].role == Role::Donor
 }
 
 /// The record of `arm` at `site` of `core` (`core_is_donor`: the core is the donor side).
-fn arm_record(
+pub(super) fn arm_record(
     cards: &CardSet,
     core: usize,
     core_is_donor: bool,
@@ -300,8 +361,7 @@ impl<'a> Describer<'a> {
     #[inline]
     pub fn describe(&mut self, t: &Tuple, x: &mut [f64; N_FEATURES]) -> Option<TupleSummary> {
         let cards = self.cards;
-        let core_is_donor =
-            t.architecture == Architecture::ADA || cards.cards[t.core].role == Role::Donor;
+        let core_is_donor = core_is_donor(cards, t);
         if self.key != Some((t.core, core_is_donor)) {
             self.key = Some((t.core, core_is_donor));
             self.arms.clear();
@@ -399,43 +459,27 @@ fn aggregate(
         Some((x, y)) => (half_descriptors(cards, x), half_descriptors(cards, y)),
         None => ([0.0; 3], [0.0; 3]),
     };
-    let d = dimer_descriptors(&pe);
-    let m2 = b.mixing * b.mixing;
-    let over = b.gap - s1_min;
-    *x = [
-        1.0,
-        b.gap,
-        b.mixing,
-        m2,
-        // Single precision: logf is about twice as fast as log, and the descriptor needs no
-        // more than its seven digits.
-        f64::from(((m2 + 1e-4) as f32).ln()),
-        b.gap * m2,
-        LN_SMALL
-            .get(n_paths)
-            .copied()
-            .unwrap_or((n_paths as f64).ln()),
-        mixing_sq_sum,
-        t1_min,
-        s1_min,
-        if b.bridge.is_some() { 1.0 } else { 0.0 },
-        b.coupling,
-        (over - HINGE_KNOTS_EV[0]).max(0.0),
-        (over - HINGE_KNOTS_EV[1]).max(0.0),
-        ps1_min,
-        pt1_min,
-        d[0],
-        d[1],
-        d[2],
-        d[3],
-        (ps1_second - ps1_min).min(SECOND_GAP_CAP_EV),
-        db[0],
-        db[1],
-        db[2],
-        ba[0],
-        ba[1],
-        ba[2],
-    ];
+    for (&f, v) in PATH_FEATURES.iter().zip(path_descriptors(&b)) {
+        x[f] = v;
+    }
+    for (&f, v) in DIMER_FEATURES.iter().zip(dimer_descriptors(&pe)) {
+        x[f] = v;
+    }
+    for (fs, vs) in HALF_FEATURES.iter().zip([db, ba]) {
+        for (&f, v) in fs.iter().zip(vs) {
+            x[f] = v;
+        }
+    }
+    x[LN_PATHS] = ln_paths(n_paths);
+    x[MIXING_SQ_SUM] = mixing_sq_sum;
+    x[LOCAL_T1_MIN] = t1_min;
+    x[LOCAL_S1_MIN] = s1_min;
+    for (&f, v) in HINGES.iter().zip(hinges(b.gap, s1_min)) {
+        x[f] = v;
+    }
+    x[PAIR_S1_MIN] = ps1_min;
+    x[PAIR_T1_MIN] = pt1_min;
+    x[PAIR_S1_SECOND_GAP] = second_gap(ps1_second, ps1_min);
     Some(TupleSummary {
         gap_ev: b.gap,
         coupling: b.coupling,

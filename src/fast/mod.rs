@@ -14,6 +14,8 @@
 //!   descriptors per class (bridged; several direct arms), per-bridge slopes and additive
 //!   fragment terms, fitted to π-tier results by `examples/fit_fast_tier.rs`; coefficients and the fit's held-out figures live in
 //!   `data/fast-tier.toml`. Tuples are ordered by log10 k_TADF from these values.
+//! - [`screen`]: the cascade's hot path, the screen score of an enumeration's stream from
+//!   records of each core's arms (the same numbers as the model's, a few times faster).
 //! - [`trees`]: gradient-boosted oblivious regression trees, the screen score's correction.
 //! - [`fit`]: ridge regression, Spearman ρ, top-k retention, the fit and its evaluation.
 //!
@@ -24,8 +26,10 @@ pub mod features;
 pub mod fit;
 pub mod model;
 pub mod pairs;
+pub mod screen;
 pub mod trees;
 
 pub use cards::{CardSet, FragmentCard, fragment_card, reference_profile};
 pub use features::{Describer, FEATURE_NAMES, N_FEATURES, TupleClass, TupleSummary, describe};
 pub use model::{BoundModel, FastEstimate, FastModel, ScreenFit};
+pub use screen::Screener;

@@ -51,9 +51,6 @@ pub const TARGETS: [&str; 4] = ["s1_ev", "log10_delta_est", "log10_f", "screen"]
 pub const PRODUCT_FIRST: usize = 14;
 /// Descriptors in the products.
 pub const N_PRODUCT_FEATURES: usize = N_FEATURES - PRODUCT_FIRST;
-/// Width of the bound model's rows of product coefficients: the product descriptors padded
-/// with zeros to a multiple of four single-precision lanes.
-const Q_WIDTH: usize = N_PRODUCT_FEATURES.div_ceil(4) * 4;
 /// Number of products (i ≤ j) in the screen score.
 pub const N_PRODUCTS: usize = N_PRODUCT_FEATURES * (N_PRODUCT_FEATURES + 1) / 2;
 
@@ -169,32 +166,28 @@ pub struct FastEstimate {
 #[derive(Debug, Clone)]
 pub struct BoundModel {
     /// `[class][target]`: class 0 bridged, 1 several direct arms.
-    w: [[[f64; N_FEATURES]; 4]; 2],
+    pub(super) w: [[[f64; N_FEATURES]; 4]; 2],
     /// `[class][i][j]`: the screen score's product coefficients over the product descriptors,
     /// upper triangle (j ≥ i; zero below), so the quadratic part is zᵀQz.
-    /// Single precision: the products' coefficients are of order one and the descriptors
-    /// below 20 in magnitude, so the sum carries rounding near 10⁻⁴ at worst on a score whose
-    /// ordering matters at 10⁻², and a vector register holds twice as many lanes as in f64.
-    /// Each row padded with zeros to [`Q_WIDTH`] columns, whole vector registers.
-    q: [[[f32; Q_WIDTH]; N_PRODUCT_FEATURES]; 2],
-    slopes: Vec<Option<Slopes>>,
+    pub(super) q: [[[f64; N_PRODUCT_FEATURES]; N_PRODUCT_FEATURES]; 2],
+    pub(super) slopes: Vec<Option<Slopes>>,
     /// Per library index: Some(terms) when fitted.
-    donor: Vec<Option<Terms>>,
-    acceptor: Vec<Option<Terms>>,
-    bridge: Vec<Option<Terms>>,
+    pub(super) donor: Vec<Option<Terms>>,
+    pub(super) acceptor: Vec<Option<Terms>>,
+    pub(super) bridge: Vec<Option<Terms>>,
     /// Refractive index and temperature for the merit.
     pub refractive_index: f64,
     pub temperature_k: f64,
     /// log10 k_TADF = merit_const + 2·log10 S1 + log10(f + 10⁻⁴) − ΔEST·merit_per_ev.
-    merit_const: f64,
-    merit_per_ev: f64,
+    pub(super) merit_const: f64,
+    pub(super) merit_per_ev: f64,
     /// log10 of the f floor (a libm call kept out of the hot path).
     log10_f_floor: f64,
     /// Added to the screen score for the bound refractive index (k_r ∝ n², the same shift for
     /// every tuple); None when bound at a temperature other than the score's.
-    screen_shift: Option<f64>,
+    pub(super) screen_shift: Option<f64>,
     /// Whether the screen score has its products (`q` is zero otherwise).
-    products: bool,
+    pub(super) products: bool,
     forest: super::trees::Forest,
     /// The forest's mask rows of the pair-table descriptors per table entry (None when the
     /// forest is not in that form, or after [`Self::drop_entry_masks`]).
@@ -206,7 +199,7 @@ pub struct BoundModel {
 /// table entries, so the rows of those ten descriptors are looked up (three ORs) instead of
 /// counted per tuple. The same mask, so the same score ([`super::trees::SplitMasks`]).
 #[derive(Debug, Clone)]
-struct EntryMasks {
+pub(super) struct EntryMasks {
     /// Per entry, the rows of [`DIMER_FEATURES`] for it as the best dimer.
     best: Vec<Mask>,
     /// Per entry, the rows of [`HALF_FEATURES`] for it as donor–bridge and as
@@ -252,19 +245,25 @@ impl EntryMasks {
     /// The trees' sum for a tuple's descriptors and summary.
     #[inline]
     fn value(&self, masks: &SplitMasks, x: &[f64; N_FEATURES], s: &TupleSummary) -> f64 {
-        let best = match s.dimer_entry {
+        masks.value_with(x, &self.pre(s.dimer_entry, s.halves), &self.slots)
+    }
+
+    /// The rows of the ten pair-table descriptors OR-ed: best dimer `entry` (None: the
+    /// neutral entry) and the bridged best arm's `halves` (None: a direct arm).
+    #[inline]
+    pub(super) fn pre(&self, entry: Option<u32>, halves: Option<(u32, u32)>) -> Mask {
+        let best = match entry {
             Some(k) => &self.best[k as usize],
             None => &self.fallback,
         };
-        let halves: Mask = match s.halves {
+        let halves: Mask = match halves {
             Some((x, y)) => {
                 let (a, b) = (&self.halves[x as usize][0], &self.halves[y as usize][1]);
                 std::array::from_fn(|w| a[w] | b[w])
             }
             None => self.direct,
         };
-        let pre: Mask = std::array::from_fn(|w| best[w] | halves[w]);
-        masks.value_with(x, &pre, &self.slots)
+        std::array::from_fn(|w| best[w] | halves[w])
     }
 }
 
@@ -345,9 +344,9 @@ impl FastModel {
             (crate::photophysics::radiative_rate(1.0, 1.0, n) / 3.0).log10()
         };
         let upper = |c: &Coefficients| {
-            let mut q = [[0.0f32; Q_WIDTH]; N_PRODUCT_FEATURES];
+            let mut q = [[0.0; N_PRODUCT_FEATURES]; N_PRODUCT_FEATURES];
             for ((i, j), &v) in products().zip(&c.screen_products) {
-                q[i - PRODUCT_FIRST][j - PRODUCT_FIRST] = v as f32;
+                q[i - PRODUCT_FIRST][j - PRODUCT_FIRST] = v;
             }
             q
         };
@@ -426,6 +425,12 @@ impl BoundModel {
         }
     }
 
+    /// The trees as split masks with the pair-table rows per entry: the form the screener
+    /// ([`super::screen::Screener`]) evaluates (None: no trees, or another form).
+    pub(super) fn entry_masked_trees(&self) -> Option<(&SplitMasks, &EntryMasks)> {
+        Some((self.forest.single_masks()?, self.entry_masks.as_ref()?))
+    }
+
     /// How the screen score's trees are evaluated (for reports and benchmarks).
     pub fn forest(&self) -> &super::trees::Forest {
         &self.forest
@@ -480,19 +485,15 @@ impl BoundModel {
     #[inline(always)]
     fn quadratic(&self, x: &[f64; N_FEATURES], class: TupleClass) -> f64 {
         let q = &self.q[usize::from(class != TupleClass::Bridged)];
-        let mut z = [0.0f32; Q_WIDTH];
-        for (zi, xi) in z.iter_mut().zip(&x[PRODUCT_FIRST..]) {
-            *zi = *xi as f32;
-        }
-        // v = Qᵀz row by row (each step one scaled row added to a register-resident
-        // accumulator; no horizontal sums), then z · v.
-        let mut v = [0.0f32; Q_WIDTH];
+        let z = &x[PRODUCT_FIRST..];
+        // v = Qᵀz row by row, then z · v.
+        let mut v = [0.0; N_PRODUCT_FEATURES];
         for (zi, qi) in z.iter().zip(q) {
-            for j in 0..Q_WIDTH {
+            for j in 0..N_PRODUCT_FEATURES {
                 v[j] += zi * qi[j];
             }
         }
-        f64::from(v.iter().zip(&z).map(|(a, b)| a * b).sum::<f32>())
+        v.iter().zip(z).map(|(a, b)| a * b).sum()
     }
 
     /// `K` consecutive linear predictions of a fitted class (bridged or several direct arms),

@@ -395,9 +395,11 @@ pub(crate) struct SplitMasks {
     features: Vec<(usize, Counter, usize)>,
     rows: Vec<Mask>,
     /// Per mask byte (two trees), the sum of the two trees' leaves for each value of the
-    /// byte, single precision (a sum of order one carries rounding near 10⁻⁶, far below the
-    /// 10⁻² at which the order matters).
-    pairs: Vec<[f32; 256]>,
+    /// byte, in integer multiples of `unit` (integer adds chain in one cycle and need no
+    /// shuffles; the unit is the finest power of two at which no sum can overflow, about
+    /// 10⁻⁸ for leaves of order one, far below the 10⁻² at which the order matters).
+    pairs: Vec<[i32; 256]>,
+    unit: f64,
     n_trees: usize,
 }
 
@@ -405,7 +407,7 @@ pub(crate) struct SplitMasks {
 const MASK_TREES: usize = 256;
 /// u64 words of a mask (four bits a tree). Rows are always this wide, so OR-ing one is a
 /// fixed number of vector instructions.
-const MASK_WORDS: usize = MASK_TREES * DEPTH / 64;
+pub(crate) const MASK_WORDS: usize = MASK_TREES * DEPTH / 64;
 pub(crate) type Mask = [u64; MASK_WORDS];
 
 /// Counts a descriptor's thresholds below a value in a few instructions: a uniform grid of
@@ -496,7 +498,7 @@ impl Counter {
 
 /// `mask |= row`, word by word (a fixed count the compiler turns into vector ORs).
 #[inline(always)]
-fn or_into(mask: &mut Mask, row: &Mask) {
+pub(crate) fn or_into(mask: &mut Mask, row: &Mask) {
     for i in 0..MASK_WORDS {
         mask[i] |= row[i];
     }
@@ -527,26 +529,60 @@ impl SplitMasks {
         let leaf = |t: usize, idx: usize| trees.get(t).map_or(0.0, |t| t.leaves[idx]);
         // Whole words of tables (a missing tree's leaves are zero), so the sum below runs
         // eight fixed look-ups a word.
-        let pairs = (0..trees.len().div_ceil(16) * 8)
+        let sums: Vec<[f64; 256]> = (0..trees.len().div_ceil(16) * 8)
             .map(|b| {
                 std::array::from_fn(|byte| {
-                    (leaf(2 * b, byte & (LEAVES - 1)) + leaf(2 * b + 1, byte >> DEPTH)) as f32
+                    leaf(2 * b, byte & (LEAVES - 1)) + leaf(2 * b + 1, byte >> DEPTH)
                 })
             })
+            .collect();
+        // The largest sum of |pair| over the bytes bounds every partial sum.
+        let bound: f64 = sums
+            .iter()
+            .map(|t| t.iter().fold(0.0f64, |m, v| m.max(v.abs())))
+            .sum();
+        let mut unit = 1.0f64;
+        while bound / unit < f64::from(i32::MAX / 4) && unit > 1e-12 {
+            unit /= 2.0;
+        }
+        while bound / unit >= f64::from(i32::MAX / 2) {
+            unit *= 2.0;
+        }
+        let pairs = sums
+            .iter()
+            .map(|t| t.map(|v| (v / unit).round() as i32))
             .collect();
         SplitMasks {
             features,
             rows,
             pairs,
+            unit,
             n_trees: trees.len(),
         }
     }
 
     /// The row of descriptor slot `k` (a position in `features`) at value `v`.
     #[inline(always)]
-    fn row(&self, k: usize, v: f64) -> &Mask {
-        let (_, counter, first_row) = &self.features[k];
-        &self.rows[first_row + counter.below(v)]
+    pub(crate) fn row(&self, k: usize, v: f64) -> &Mask {
+        self.row_at(k, self.count(k, v))
+    }
+
+    /// The slot of descriptor `f` (None: no tree asks about it).
+    pub(crate) fn slot(&self, f: usize) -> Option<usize> {
+        self.features.iter().position(|s| s.0 == f)
+    }
+
+    /// The count of slot `k`'s thresholds below `v`. Counts grow with the value, so the count
+    /// of a minimum is the minimum of the counts.
+    #[inline(always)]
+    pub(crate) fn count(&self, k: usize, v: f64) -> usize {
+        self.features[k].1.below(v)
+    }
+
+    /// The row of slot `k` for a count of thresholds below ([`Self::count`]).
+    #[inline(always)]
+    pub(crate) fn row_at(&self, k: usize, count: usize) -> &Mask {
+        &self.rows[self.features[k].2 + count]
     }
 
     #[inline]
@@ -564,7 +600,7 @@ impl SplitMasks {
     pub(crate) fn rows_of(&self, values: &[(usize, f64)]) -> Mask {
         let mut mask = [0u64; MASK_WORDS];
         for &(f, v) in values {
-            if let Some(k) = self.features.iter().position(|s| s.0 == f) {
+            if let Some(k) = self.slot(f) {
                 or_into(&mut mask, self.row(k, v));
             }
         }
@@ -594,15 +630,20 @@ impl SplitMasks {
     /// Σ of the trees' leaves for a mask: one table look-up per byte, into eight partial
     /// sums (independent chains the CPU overlaps).
     #[inline(always)]
-    fn leaf_sum(&self, mask: &Mask) -> f64 {
-        let mut acc = [0.0f32; 8];
-        for (word, tables) in mask.iter().zip(self.pairs.chunks_exact(8)) {
-            let bytes = word.to_le_bytes();
+    pub(crate) fn leaf_sum(&self, mask: &Mask) -> f64 {
+        // The mask as bytes in memory once (a byte load each, no shifts per byte).
+        let mut bytes = [0u8; MASK_WORDS * 8];
+        for (b, w) in bytes.chunks_exact_mut(8).zip(mask) {
+            b.copy_from_slice(&w.to_le_bytes());
+        }
+        let mut acc = [0i32; 2];
+        for (b, tables) in bytes.chunks_exact(8).zip(self.pairs.chunks_exact(8)) {
             for k in 0..8 {
-                acc[k] += tables[k][usize::from(bytes[k])];
+                // No overflow: |Σ| ≤ i32::MAX / 2 by the choice of unit.
+                acc[k & 1] = acc[k & 1].wrapping_add(tables[k][usize::from(b[k])]);
             }
         }
-        f64::from(((acc[0] + acc[1]) + (acc[2] + acc[3])) + ((acc[4] + acc[5]) + (acc[6] + acc[7])))
+        f64::from(acc[0].wrapping_add(acc[1])) * self.unit
     }
 }
 

@@ -7,8 +7,8 @@ use std::ops::ControlFlow;
 use lumisift::combine::{EnumerateParams, Enumerator, Tuple, TupleEvent};
 use lumisift::fast::fit::{evaluate, fit_model, screen_fit};
 use lumisift::fast::pairs::{PairCache, dimer_jobs};
-use lumisift::fast::{CardSet, Describer, FastModel, N_FEATURES, TupleClass};
-use lumisift::model::Architecture;
+use lumisift::fast::{CardSet, Describer, FastModel, N_FEATURES, Screener, TupleClass};
+use lumisift::model::{Architecture, Role};
 use lumisift::pi::params::PppParams;
 
 #[path = "../support/fasttier.rs"]
@@ -476,11 +476,48 @@ fn the_fast_score_equals_the_full_prediction() {
     let mut stream = Describer::new(set);
     let mut skipping = Describer::new(set);
     let mut counting = Describer::new(set);
+    // The cascade's screener (arm records kept per run of a core) gives the same scores up to
+    // the order of additions, with and without trees, on the stream and on every third tuple;
+    // at another temperature it scores through the descriptors, exactly.
+    let mut ridge = at_fit.clone();
+    ridge.drop_trees();
+    let mut screener = Screener::new(&at_fit, set);
+    let mut screener_skipping = Screener::new(&at_fit, set);
+    let mut screener_ridge = Screener::new(&ridge, set);
+    let mut screener_warmer = Screener::new(&warmer, set);
+    assert!(screener.uses_records() && screener_ridge.uses_records());
+    assert!(!screener_warmer.uses_records() && !Screener::new(&counted, set).uses_records());
+    let mut ridge_stream = Describer::new(set);
+    let same =
+        |a: Option<(f64, bool)>, b: Option<(f64, bool)>, t: &lumisift::combine::Tuple| match (a, b)
+        {
+            (None, None) => {}
+            (Some((x, u)), Some((y, v))) => {
+                assert!(
+                    (x - y).abs() <= 1e-9 * x.abs().max(1.0),
+                    "{x} vs {y}: {t:?}"
+                );
+                assert_eq!(u, v, "{t:?}");
+            }
+            _ => panic!("{a:?} vs {b:?}: {t:?}"),
+        };
     // (bridged best arm, direct best arm, no dimer known) among the fitted classes
     let mut seen = [0usize; 3];
+    // (run of a core and side, site, arm)
+    let mut triples = std::collections::HashSet::new();
+    let (mut run, mut key) = (0usize, None);
     en.for_each(|e| {
         if let TupleEvent::Admitted(t) = e {
             n += 1;
+            let donor_side =
+                t.architecture == Architecture::ADA || set.cards[t.core].role == Role::Donor;
+            if key != Some((t.core, donor_side)) {
+                key = Some((t.core, donor_side));
+                run += 1;
+            }
+            for (site, &arm) in t.arms.iter().enumerate() {
+                triples.insert((run, site, arm));
+            }
             let (mut x, mut y) = ([0.0; N_FEATURES], [0.0; N_FEATURES]);
             let fresh = lumisift::fast::describe(set, &t, &mut x);
             assert_eq!(stream.describe(&t, &mut y), fresh);
@@ -494,8 +531,20 @@ fn the_fast_score_equals_the_full_prediction() {
                     .map(|v| v.0.to_bits()),
                 "{t:?}"
             );
+            same(screener.score(&t), streamed, &t);
+            same(
+                screener_ridge.score(&t),
+                ridge.score_stream(&mut ridge_stream, &t),
+                &t,
+            );
+            if n % 3 == 0 {
+                same(screener_skipping.score(&t), streamed, &t);
+            }
+            if n % 11 == 0 {
+                assert_eq!(screener_warmer.score(&t), warmer.score(set, &t));
+            }
             if let Some(s) = fresh
-                && s.class != lumisift::fast::TupleClass::Dimer
+                && s.class != TupleClass::Dimer
             {
                 seen[0] += usize::from(s.halves.is_some());
                 seen[1] += usize::from(s.halves.is_none() && s.dimer_entry.is_some());
@@ -522,4 +571,8 @@ fn the_fast_score_equals_the_full_prediction() {
     });
     assert!(n > 1000);
     assert!(seen[0] > 100 && seen[1] > 100 && seen[2] > 0, "{seen:?}");
+    // Records are made once per (site, arm) per run of a core and side: none made twice in a
+    // run, none shared by two arms.
+    assert_eq!(screener.records_made(), triples.len() as u64, "{n} tuples");
+    assert!(triples.len() < n, "{} triples, {n} tuples", triples.len());
 }

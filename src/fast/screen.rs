@@ -1,0 +1,645 @@
+//! The cascade's hot path: the screen score of every tuple of an enumeration's stream, from
+//! records of the arms kept for a core's whole run.
+//!
+//! A tuple's screen score ([`BoundModel::score`]) is a sum whose parts each depend on few of
+//! the tuple's arms: the best donor–acceptor path's descriptors (one arm), the best dimer's
+//! and its halves' descriptors (one arm, a pair-table entry and two more), and a handful of
+//! descriptors aggregated over the arms (minima, a count, a sum, a second-lowest value).
+//! An enumeration runs through each core's tuples in one stretch, and a core's arms recur
+//! for every tuple of it: the shipped library's 2.4·10^6 tuples of every architecture
+//! have 36,057 distinct (core, site, arm) triples (measured with the benchmark's enumeration,
+//! 2026-12-03). So each triple gets a [`Record`] once per run of its core, holding what it
+//! contributes as the best path (its share of the linear part, its fragment terms, its
+//! trees' split rows) and as the best dimer (its share of the linear and quadratic parts, its
+//! split rows, its exact score as a D–A dimer); a tuple is then a pass over its arms'
+//! records (minima, two selections, a count and a sum), nine aggregated descriptors, a few
+//! products, eleven rows OR-ed and the leaf sums.
+//!
+//! The result is the score of [`BoundModel::score_stream`] up to the order of floating-point
+//! additions (the same descriptors, the same trees' mask, so the same leaves; tested over
+//! every architecture). A model bound at a temperature other than the score's, or whose trees
+//! are in another form, is scored through the descriptors ([`Describer`]) instead.
+
+use smallvec::SmallVec;
+
+use super::cards::CardSet;
+use super::features::{
+    self, BRIDGE_SLOPE_FEATURES, DIMER_FEATURES, Describer, HALF_FEATURES, HINGES, LN_PATHS,
+    LOCAL_S1_MIN, LOCAL_T1_MIN, MIXING_SQ_SUM, N_FEATURES, PAIR_S1_MIN, PAIR_S1_SECOND_GAP,
+    PAIR_T1_MIN, PATH_FEATURES, Path,
+};
+use super::model::{BoundModel, EntryMasks, N_PRODUCT_FEATURES, PRODUCT_FIRST};
+use super::trees::{Mask, SplitMasks, or_into};
+use crate::combine::{Arm, Tuple};
+
+/// The descriptors aggregated over a tuple's arms, in the order of the screener's sums.
+const AGG: [usize; 9] = [
+    LN_PATHS,
+    MIXING_SQ_SUM,
+    LOCAL_T1_MIN,
+    LOCAL_S1_MIN,
+    HINGES[0],
+    HINGES[1],
+    PAIR_S1_MIN,
+    PAIR_T1_MIN,
+    PAIR_S1_SECOND_GAP,
+];
+/// Positions in [`AGG`] of the aggregated descriptors among the products (lowest dimer S1
+/// and T1, second-lowest gap); every other product descriptor comes from the best dimer's
+/// entries.
+const AGG_IN_PRODUCTS: [usize; 3] = [6, 7, 8];
+/// Index of the screen score among the model's targets.
+const SCREEN: usize = 3;
+
+/// What one (core, site, arm) contributes: computed once per run of its core.
+#[derive(Clone)]
+struct Record {
+    /// Lowest local S1 and T1 of the arm's fragments, and their counts of the trees'
+    /// thresholds below ([`LOCAL_S1_MIN`], [`LOCAL_T1_MIN`]).
+    s1: f64,
+    t1: f64,
+    counts: [u16; 2],
+    path: Option<PathPart>,
+    /// Some only with a path (an arm's dimer is that of its path).
+    dimer: Option<DimerPart>,
+}
+
+/// An arm as its tuple's best donor–acceptor path.
+#[derive(Clone)]
+struct PathPart {
+    gap: f64,
+    mixing: f64,
+    mixing_sq: f64,
+    bridged: bool,
+    /// The linear part's share of the path descriptors (with the constant), the fragment
+    /// terms and the bridge slope on the path's coupling.
+    linear: f64,
+    /// The bridge's slopes on the best dimer's descriptors ([`DIMER_FEATURES`] order).
+    dimer_slopes: [f64; 4],
+    /// A fragment of the path has no fitted term.
+    unseen: bool,
+    /// The trees' rows of the path descriptors OR-ed.
+    mask: Mask,
+}
+
+/// An arm's dimer as its tuple's best dimer (or the table's neutral entry).
+#[derive(Clone)]
+struct DimerPart {
+    s1: f64,
+    t1: f64,
+    /// Counts of the trees' thresholds below `s1` and `t1` ([`PAIR_S1_MIN`], [`PAIR_T1_MIN`]).
+    counts: [u16; 2],
+    merit: f64,
+    /// The score of a D–A tuple that is this dimer (its exact π-tier log10 k_TADF).
+    exact: f64,
+    /// The best dimer's descriptors ([`DIMER_FEATURES`] order), for the bridge slopes.
+    values: [f64; 4],
+    /// Per class: the linear part's share of the dimer's and halves' descriptors, the
+    /// quadratic form over them alone, and the coefficient of each aggregated product
+    /// descriptor ([`AGG_IN_PRODUCTS`]) in the cross terms.
+    linear: [f64; 2],
+    quad: [f64; 2],
+    cross: [[f64; 3]; 2],
+    /// The trees' rows of the dimer's and halves' descriptors OR-ed.
+    mask: Mask,
+}
+
+/// The bound model's parts in the screener's form.
+struct Parts<'a> {
+    /// Per class, the screen coefficients of [`AGG`].
+    agg: [[f64; 9]; 2],
+    /// Per class, the quadratic form among the aggregated product descriptors.
+    agg_quad: [[[f64; 3]; 3]; 2],
+    shift: f64,
+    trees: Option<TreeParts<'a>>,
+    /// The neutral entry as the best dimer (no arm's dimer known).
+    fallback: DimerPart,
+}
+
+struct TreeParts<'a> {
+    masks: &'a SplitMasks,
+    entries: &'a EntryMasks,
+    /// Slots of [`PATH_FEATURES`].
+    path_slots: [Option<usize>; 8],
+    /// Slots of [`AGG`]'s descriptors (None: no tree asks about it).
+    slots: [Option<usize>; 9],
+    /// Rows of the path count's descriptor for 0..8 paths (empty: no tree asks about it).
+    ln_rows: Vec<Mask>,
+    /// A row of no splits.
+    zero: Mask,
+}
+
+/// Per site, where each arm's record is: the generation it was made in and its index.
+#[derive(Default)]
+struct SiteSlots {
+    /// Hydrogen (0) and one-site fragments (1 + index).
+    direct: Vec<u64>,
+    /// Per bridge and core-side site (2·bridge + site), per terminal; allocated on first use.
+    bridged: Vec<Vec<u64>>,
+}
+
+/// Scores a stream of tuples (see the module's documentation). One per screen run; no
+/// allocation per tuple once a core's arms are recorded.
+pub struct Screener<'a> {
+    model: &'a BoundModel,
+    cards: &'a CardSet,
+    parts: Option<Parts<'a>>,
+    describer: Describer<'a>,
+    cache: Cache,
+}
+
+/// The records of the current run of a core.
+struct Cache {
+    key: Option<(usize, bool)>,
+    generation: u32,
+    slots: Vec<SiteSlots>,
+    records: Vec<Record>,
+    /// The records of the current tuple's arms, with the arms.
+    current: SmallVec<[(Arm, u32); 4]>,
+    /// The core's local S1 and T1 with their counts.
+    core: (f64, f64, [u16; 2]),
+    made: u64,
+}
+
+impl<'a> Screener<'a> {
+    pub fn new(model: &'a BoundModel, cards: &'a CardSet) -> Screener<'a> {
+        Screener {
+            model,
+            cards,
+            parts: Parts::new(model, cards),
+            describer: Describer::new(cards),
+            cache: Cache {
+                key: None,
+                generation: 0,
+                slots: Vec::new(),
+                records: Vec::new(),
+                current: SmallVec::new(),
+                core: (f64::INFINITY, f64::INFINITY, [0; 2]),
+                made: 0,
+            },
+        }
+    }
+
+    /// Whether tuples are scored from arm records (false: through the descriptors).
+    pub fn uses_records(&self) -> bool {
+        self.parts.is_some()
+    }
+
+    /// Arm records made so far (one per (core, site, arm) per run of its core).
+    pub fn records_made(&self) -> u64 {
+        self.cache.made
+    }
+
+    /// The screen score of `t` and whether a fragment was outside the fit: the numbers of
+    /// [`BoundModel::score`]. None when `t` has no donor–acceptor path.
+    #[inline]
+    pub fn score(&mut self, t: &Tuple) -> Option<(f64, bool)> {
+        let Some(parts) = &self.parts else {
+            return self.model.score_stream(&mut self.describer, t);
+        };
+        self.cache.sync(t, self.cards, self.model, parts);
+        let records = &self.cache.records;
+        let (mut s1, mut t1, mut local) = self.cache.core;
+        let mut best: Option<&PathPart> = None;
+        let mut n_paths = 0usize;
+        let mut mixing_sq_sum = 0.0;
+        let mut best_dimer: Option<&DimerPart> = None;
+        let (mut ps1, mut second, mut pt1) = (f64::INFINITY, f64::INFINITY, f64::INFINITY);
+        let mut pair = [u16::MAX; 2];
+        for &(_, i) in &self.cache.current {
+            let r = &records[i as usize];
+            if r.s1 < s1 {
+                s1 = r.s1;
+            }
+            if r.t1 < t1 {
+                t1 = r.t1;
+            }
+            local = [local[0].min(r.counts[0]), local[1].min(r.counts[1])];
+            let Some(p) = &r.path else {
+                continue;
+            };
+            if let Some(d) = &r.dimer {
+                if d.s1 < ps1 {
+                    second = ps1;
+                    ps1 = d.s1;
+                } else if d.s1 < second {
+                    second = d.s1;
+                }
+                pt1 = pt1.min(d.t1);
+                pair = [pair[0].min(d.counts[0]), pair[1].min(d.counts[1])];
+                if best_dimer.is_none_or(|b| d.merit > b.merit) {
+                    best_dimer = Some(d);
+                }
+            }
+            n_paths += 1;
+            mixing_sq_sum += p.mixing_sq;
+            // The rule of `features::aggregate`: the lowest gap, then the larger mixing.
+            best = match best {
+                None => Some(p),
+                Some(b)
+                    if p.gap < b.gap - 1e-9 || (p.gap <= b.gap + 1e-9 && p.mixing > b.mixing) =>
+                {
+                    Some(p)
+                }
+                keep => keep,
+            };
+        }
+        let b = best?;
+        let d = match best_dimer {
+            // One direct arm with a known dimer: the tuple is its dimer.
+            Some(d) if !b.bridged && n_paths == 1 => return Some((d.exact, false)),
+            Some(d) => d,
+            None => {
+                let f = &parts.fallback;
+                (ps1, pt1, pair) = (f.s1, f.t1, f.counts);
+                f
+            }
+        };
+        let c = usize::from(!b.bridged);
+        let h = features::hinges(b.gap, s1);
+        let gap2 = features::second_gap(second, ps1);
+        let xa = [
+            features::ln_paths(n_paths),
+            mixing_sq_sum,
+            t1,
+            s1,
+            h[0],
+            h[1],
+            ps1,
+            pt1,
+            gap2,
+        ];
+        let mut y = b.linear + d.linear[c];
+        for (w, v) in parts.agg[c].iter().zip(&xa) {
+            y += w * v;
+        }
+        for (w, v) in b.dimer_slopes.iter().zip(&d.values) {
+            y += w * v;
+        }
+        if self.model.products {
+            let za = AGG_IN_PRODUCTS.map(|k| xa[k]);
+            y += d.quad[c];
+            for a in 0..3 {
+                let mut row = d.cross[c][a];
+                for (q, z) in parts.agg_quad[c][a].iter().zip(&za) {
+                    row += q * z;
+                }
+                y += za[a] * row;
+            }
+        }
+        if let Some(tp) = &parts.trees {
+            let m = tp.masks;
+            // Every row first (a descriptor no tree asks about: the zero row), then one pass
+            // OR-ing them word by word (the mask stays in registers).
+            let row = |slot: Option<usize>, v: f64| slot.map_or(&tp.zero, |k| m.row(k, v));
+            let row_at = |slot: Option<usize>, c: u16| {
+                slot.map_or(&tp.zero, |k| m.row_at(k, usize::from(c)))
+            };
+            let [ln, mss, lt1, ls1, h0, h1, ps, pt, g2] = tp.slots;
+            let rows: [&Mask; 11] = [
+                &b.mask,
+                &d.mask,
+                tp.ln_rows.get(n_paths).unwrap_or_else(|| row(ln, xa[0])),
+                row(mss, mixing_sq_sum),
+                row(h0, h[0]),
+                row(h1, h[1]),
+                row(g2, gap2),
+                row_at(lt1, local[1]),
+                row_at(ls1, local[0]),
+                row_at(pt, pair[1]),
+                row_at(ps, pair[0]),
+            ];
+            let mask: Mask = std::array::from_fn(|w| rows.iter().fold(0, |acc, r| acc | r[w]));
+            y += m.leaf_sum(&mask);
+        }
+        Some((y + parts.shift, b.unseen))
+    }
+}
+
+impl Cache {
+    /// Point `current` at the records of `t`'s arms, making those not yet recorded for this
+    /// run of its core.
+    #[inline]
+    fn sync(&mut self, t: &Tuple, cards: &CardSet, model: &BoundModel, parts: &Parts) {
+        let key = (t.core, features::core_is_donor(cards, t));
+        if self.key != Some(key) {
+            self.key = Some(key);
+            self.generation += 1;
+            self.records.clear();
+            self.current.clear();
+            let card = &cards.cards[t.core];
+            let counts = local_counts(parts, card.s1_ev, card.t1_ev);
+            self.core = (card.s1_ev, card.t1_ev, counts);
+        }
+        self.current.truncate(t.arms.len());
+        for (site, &arm) in t.arms.iter().enumerate() {
+            if self.current.get(site).is_some_and(|c| c.0 == arm) {
+                continue;
+            }
+            let i = self.record_of(key, site, arm, cards, model, parts);
+            if site < self.current.len() {
+                self.current[site] = (arm, i);
+            } else {
+                self.current.push((arm, i));
+            }
+        }
+    }
+
+    /// The index of the record of `arm` at `site` in this run of the core, made if new.
+    fn record_of(
+        &mut self,
+        (core, core_is_donor): (usize, bool),
+        site: usize,
+        arm: Arm,
+        cards: &CardSet,
+        model: &BoundModel,
+        parts: &Parts,
+    ) -> u32 {
+        let generation = u64::from(self.generation) << 32;
+        let slot = slot_of(&mut self.slots, cards.cards.len(), site, arm);
+        if *slot & !u64::from(u32::MAX) == generation {
+            return *slot as u32;
+        }
+        let i = self.records.len() as u32;
+        *slot = generation | u64::from(i);
+        let r = features::arm_record(cards, core, core_is_donor, site, arm);
+        self.records.push(Record {
+            s1: r.s1,
+            t1: r.t1,
+            counts: local_counts(parts, r.s1, r.t1),
+            path: r.path.map(|p| path_part(model, parts, &p)),
+            dimer: r
+                .dimer
+                .map(|k| dimer_part(model, cards, parts, Some(k), r.halves)),
+        });
+        self.made += 1;
+        i
+    }
+}
+
+/// Where the record of `arm` at `site` is noted (`n` fragments), allocated on first use.
+fn slot_of(slots: &mut Vec<SiteSlots>, n: usize, site: usize, arm: Arm) -> &mut u64 {
+    if slots.len() <= site {
+        slots.resize_with(site + 1, SiteSlots::default);
+    }
+    let s = &mut slots[site];
+    match arm {
+        Arm::H | Arm::Terminal(_) => {
+            if s.direct.is_empty() {
+                s.direct = vec![0; n + 1];
+            }
+            let i = if let Arm::Terminal(f) = arm { 1 + f } else { 0 };
+            &mut s.direct[i]
+        }
+        Arm::Bridged {
+            bridge,
+            core_site,
+            terminal,
+        } => {
+            if s.bridged.is_empty() {
+                s.bridged = vec![Vec::new(); 2 * n];
+            }
+            let row = &mut s.bridged[2 * bridge + usize::from(core_site)];
+            if row.is_empty() {
+                *row = vec![0; n];
+            }
+            &mut row[terminal]
+        }
+    }
+}
+
+/// Counts of the trees' thresholds below a local S1 and T1.
+fn local_counts(parts: &Parts, s1: f64, t1: f64) -> [u16; 2] {
+    parts
+        .trees
+        .as_ref()
+        .map_or([0; 2], |tp| counts(tp, [(3, s1), (2, t1)]))
+}
+
+/// Counts below `values` of the [`AGG`] descriptors at the given positions (0 for a
+/// descriptor no tree asks about).
+fn counts(tp: &TreeParts, values: [(usize, f64); 2]) -> [u16; 2] {
+    values.map(|(a, v)| tp.slots[a].map_or(0, |k| tp.masks.count(k, v) as u16))
+}
+
+impl<'a> Parts<'a> {
+    /// None when the model is not in the form the records serve: bound at a temperature
+    /// other than the screen score's, trees not in one set of split masks with per-entry
+    /// rows, or a descriptor layout the records do not split (guarded, tested).
+    fn new(model: &'a BoundModel, cards: &CardSet) -> Option<Parts<'a>> {
+        let shift = model.screen_shift?;
+        let trees = match model.entry_masked_trees() {
+            Some((masks, entries)) => {
+                let slots = AGG.map(|f| masks.slot(f));
+                let ln_rows = match slots[0] {
+                    Some(k) => (0..=8)
+                        .map(|n| *masks.row(k, features::ln_paths(n)))
+                        .collect(),
+                    None => Vec::new(),
+                };
+                Some(TreeParts {
+                    masks,
+                    entries,
+                    path_slots: PATH_FEATURES.map(|f| masks.slot(f)),
+                    slots,
+                    ln_rows,
+                    zero: [0; super::trees::MASK_WORDS],
+                })
+            }
+            None if model.forest().n_trees() == 0 && model.forest().tables().is_empty() => None,
+            None => return None,
+        };
+        if !layout_is_split() {
+            return None;
+        }
+        let mut agg_quad = [[[0.0; 3]; 3]; 2];
+        for (c, aq) in agg_quad.iter_mut().enumerate() {
+            for (a, row) in aq.iter_mut().enumerate() {
+                for (b, v) in row.iter_mut().enumerate() {
+                    let (i, j) = (
+                        AGG[AGG_IN_PRODUCTS[a]] - PRODUCT_FIRST,
+                        AGG[AGG_IN_PRODUCTS[b]] - PRODUCT_FIRST,
+                    );
+                    *v = model.q[c][i][j];
+                }
+            }
+        }
+        let mut parts = Parts {
+            agg: std::array::from_fn(|c| AGG.map(|f| model.w[c][SCREEN][f])),
+            agg_quad,
+            shift,
+            trees,
+            fallback: empty_dimer(),
+        };
+        let fallback = dimer_part(model, cards, &parts, None, None);
+        parts.fallback = fallback;
+        Some(parts)
+    }
+}
+
+/// Whether the descriptors split as the records assume: path, dimer, halves and aggregated
+/// descriptors cover every descriptor once, the products are the dimer's, the halves' and
+/// [`AGG_IN_PRODUCTS`], and the bridge slopes fall on path or dimer descriptors.
+fn layout_is_split() -> bool {
+    let mut seen = [0u8; N_FEATURES];
+    for &f in PATH_FEATURES
+        .iter()
+        .chain(&DIMER_FEATURES)
+        .chain(HALF_FEATURES.iter().flatten())
+        .chain(&AGG)
+    {
+        seen[f] += 1;
+    }
+    let entry =
+        |f: &usize| DIMER_FEATURES.contains(f) || HALF_FEATURES.iter().flatten().any(|h| h == f);
+    seen.iter().all(|&n| n == 1)
+        && (PRODUCT_FIRST..N_FEATURES)
+            .all(|f| entry(&f) || AGG_IN_PRODUCTS.iter().any(|&a| AGG[a] == f))
+        && AGG_IN_PRODUCTS.iter().all(|&a| AGG[a] >= PRODUCT_FIRST)
+        && BRIDGE_SLOPE_FEATURES
+            .iter()
+            .all(|f| PATH_FEATURES.contains(f) || DIMER_FEATURES.contains(f))
+}
+
+fn empty_dimer() -> DimerPart {
+    DimerPart {
+        s1: 0.0,
+        t1: 0.0,
+        counts: [0; 2],
+        merit: 0.0,
+        exact: 0.0,
+        values: [0.0; 4],
+        linear: [0.0; 2],
+        quad: [0.0; 2],
+        cross: [[0.0; 3]; 2],
+        mask: [0; super::trees::MASK_WORDS],
+    }
+}
+
+/// A path's part (class from its bridge: bridged or several direct arms).
+fn path_part(model: &BoundModel, parts: &Parts, p: &Path) -> PathPart {
+    let c = usize::from(p.bridge.is_none());
+    let v = features::path_descriptors(p);
+    let w = &model.w[c][SCREEN];
+    let mut linear = 0.0;
+    for (&f, x) in PATH_FEATURES.iter().zip(&v) {
+        linear += w[f] * x;
+    }
+    let mut unseen = false;
+    let mut term = |t: Option<super::model::Terms>| match t {
+        Some(t) => linear += t[SCREEN],
+        None => unseen = true,
+    };
+    term(model.donor[p.donor]);
+    term(model.acceptor[p.acceptor]);
+    let mut dimer_slopes = [0.0; 4];
+    if let Some(b) = p.bridge {
+        term(model.bridge[b]);
+        if let Some(sl) = model.slopes[b] {
+            for (k, f) in BRIDGE_SLOPE_FEATURES.iter().enumerate() {
+                if let Some(i) = PATH_FEATURES.iter().position(|g| g == f) {
+                    linear += sl[SCREEN][k] * v[i];
+                } else if let Some(i) = DIMER_FEATURES.iter().position(|g| g == f) {
+                    dimer_slopes[i] += sl[SCREEN][k];
+                }
+            }
+        }
+    }
+    let mut mask = [0; super::trees::MASK_WORDS];
+    if let Some(tp) = &parts.trees {
+        for (slot, x) in tp.path_slots.iter().zip(v) {
+            if let Some(k) = *slot {
+                or_into(&mut mask, tp.masks.row(k, x));
+            }
+        }
+    }
+    PathPart {
+        gap: p.gap,
+        mixing: p.mixing,
+        mixing_sq: p.mixing * p.mixing,
+        bridged: p.bridge.is_some(),
+        linear,
+        dimer_slopes,
+        unseen,
+        mask,
+    }
+}
+
+/// A dimer's part: pair-table `entry` (None: the neutral entry) with a bridged arm's
+/// `halves` (None: a direct arm).
+fn dimer_part(
+    model: &BoundModel,
+    cards: &CardSet,
+    parts: &Parts,
+    entry: Option<u32>,
+    halves: Option<(u32, u32)>,
+) -> DimerPart {
+    let e = entry.map_or(&cards.pair_fallback, |k| {
+        &cards.pair_table.entries[k as usize]
+    });
+    // The entry descriptors in place, every other descriptor zero.
+    let mut x = [0.0; N_FEATURES];
+    let values = features::dimer_descriptors(e);
+    for (&f, v) in DIMER_FEATURES.iter().zip(values) {
+        x[f] = v;
+    }
+    if let Some((db, ba)) = halves {
+        for (fs, k) in HALF_FEATURES.iter().zip([db, ba]) {
+            for (&f, v) in fs.iter().zip(features::half_descriptors(cards, k)) {
+                x[f] = v;
+            }
+        }
+    }
+    let z = &x[PRODUCT_FIRST..];
+    let mut linear = [0.0; 2];
+    let mut quad = [0.0; 2];
+    let mut cross = [[0.0; 3]; 2];
+    for c in 0..2 {
+        linear[c] = model.w[c][SCREEN].iter().zip(&x).map(|(w, v)| w * v).sum();
+        if model.products {
+            // Q is upper triangular (j ≥ i).
+            let q = &model.q[c];
+            for i in 0..N_PRODUCT_FEATURES {
+                let row: f64 = (i..N_PRODUCT_FEATURES).map(|j| q[i][j] * z[j]).sum();
+                quad[c] += z[i] * row;
+            }
+            for (a, &k) in AGG_IN_PRODUCTS.iter().enumerate() {
+                let i = AGG[k] - PRODUCT_FIRST;
+                cross[c][a] = (0..i).map(|j| q[j][i] * z[j]).sum::<f64>()
+                    + (i..N_PRODUCT_FEATURES).map(|j| q[i][j] * z[j]).sum::<f64>();
+            }
+        }
+    }
+    let mask = match &parts.trees {
+        Some(tp) => tp.entries.pre(entry, halves),
+        None => [0; super::trees::MASK_WORDS],
+    };
+    let (s1, t1) = (e.v.s1_ev, e.v.t1_ev);
+    DimerPart {
+        s1,
+        t1,
+        counts: parts
+            .trees
+            .as_ref()
+            .map_or([0; 2], |tp| counts(tp, [(6, s1), (7, t1)])),
+        merit: e.merit,
+        exact: model.merit_const + e.log10_s1sq_f - e.v.delta_est_ev.max(0.0) * model.merit_per_ev,
+        values,
+        linear,
+        quad,
+        cross,
+        mask,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The records' split of the descriptors is the descriptors' layout (a descriptor added
+    /// or moved without the screener knowing would silently drop out of the score).
+    #[test]
+    fn the_descriptor_layout_splits_as_the_records_assume() {
+        assert!(layout_is_split());
+    }
+}
