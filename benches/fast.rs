@@ -21,7 +21,7 @@ fn bench(c: &mut Criterion) {
     let bound = FastModel::default_model().bind(&set, 1.7, 300.0);
     let mut ridge_only = bound.clone();
     ridge_only.drop_trees();
-    let tuples = fast_tuples::tuples(&lib, false);
+    let tuples = fast_tuples::tuples(&lib, fast_tuples::Sample::Blocks);
     let mut g = c.benchmark_group("fast tier");
     g.throughput(Throughput::Elements(tuples.len() as u64));
     for (name, model) in [("score", &bound), ("score without trees", &ridge_only)] {

@@ -12,7 +12,8 @@
 //! = the "Collected" count / the tuple count printed. The tuples are the benchmark's
 //! (`benches/fast.rs`): blocks of 1,000 consecutive admitted tuples, one block in every
 //! 7,000, so every architecture is represented and each block is the stream the screen meets;
-//! `every7` takes every 7th tuple instead (no two consecutive).
+//! `every7` takes every 7th tuple instead (no two consecutive), `runs` ten runs of 10,000
+//! consecutive tuples (closer to a whole screen's stream).
 use std::hint::black_box;
 
 use lumisift::combine::Tuple;
@@ -77,8 +78,14 @@ fn main() {
     let mut ridge_only = bound.clone();
     ridge_only.drop_trees();
     let arg = std::env::args().nth(1).unwrap_or_default();
-    let every7 = std::env::args().any(|a| a == "every7");
-    let tuples = fast_tuples::tuples(&lib, every7);
+    let sample = if std::env::args().any(|a| a == "every7") {
+        fast_tuples::Sample::Every7
+    } else if std::env::args().any(|a| a == "runs") {
+        fast_tuples::Sample::Runs
+    } else {
+        fast_tuples::Sample::Blocks
+    };
+    let tuples = fast_tuples::tuples(&lib, sample);
     println!("{} tuples", tuples.len());
     let time = |name: &str, f: &dyn Fn() -> f64| {
         let t0 = std::time::Instant::now();

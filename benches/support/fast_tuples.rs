@@ -7,11 +7,23 @@ use lumisift::combine::{DnAMode, EnumerateParams, Enumerator, Tuple, TupleEvent}
 use lumisift::fragments::Library;
 use lumisift::model::Architecture;
 
-/// 100,000 admitted tuples of `lib` (all architectures, Dn-A up to four mixed donors): blocks
-/// of 1,000 consecutive tuples, one block in every 7,000, so every architecture is represented
-/// and each block is the stream the screen meets (it describes tuples in enumeration order,
-/// reusing unchanged arms); with `every7`, every 7th tuple instead (no two consecutive).
-pub fn tuples(lib: &Library, every7: bool) -> Vec<Tuple> {
+/// How the 100,000 tuples are taken from the enumeration.
+#[derive(Clone, Copy, PartialEq)]
+#[allow(dead_code)] // the benchmark takes blocks only
+pub enum Sample {
+    /// Blocks of 1,000 consecutive tuples, one block in every 7,000: every architecture is
+    /// represented and each block is the stream the screen meets (tuples in enumeration
+    /// order, unchanged arms reused), cut short.
+    Blocks,
+    /// Every 7th tuple (no two consecutive).
+    Every7,
+    /// Ten runs of 10,000 consecutive tuples, one run in every 240,000 (the shipped library
+    /// has 2.43·10^6): longer stretches of one core, closer to a whole screen.
+    Runs,
+}
+
+/// 100,000 admitted tuples of `lib` (all architectures, Dn-A up to four mixed donors).
+pub fn tuples(lib: &Library, sample: Sample) -> Vec<Tuple> {
     let params = EnumerateParams {
         architectures: Architecture::ALL.to_vec(),
         dn_a_max: 4,
@@ -23,10 +35,10 @@ pub fn tuples(lib: &Library, every7: bool) -> Vec<Tuple> {
     let mut k = 0usize;
     en.for_each(|e| {
         if let TupleEvent::Admitted(t) = e {
-            let take = if every7 {
-                k.is_multiple_of(7)
-            } else {
-                k % 7000 < 1000
+            let take = match sample {
+                Sample::Blocks => k % 7000 < 1000,
+                Sample::Every7 => k.is_multiple_of(7),
+                Sample::Runs => k % 240_000 < 10_000,
             };
             if take {
                 tuples.push(t);

@@ -20,8 +20,6 @@
 //! every architecture). A model bound at a temperature other than the score's, or whose trees
 //! are in another form, is scored through the descriptors ([`Describer`]) instead.
 
-use smallvec::SmallVec;
-
 use super::cards::CardSet;
 use super::features::{
     self, BRIDGE_SLOPE_FEATURES, DIMER_FEATURES, Describer, HALF_FEATURES, HINGES, LN_PATHS,
@@ -154,8 +152,9 @@ struct Cache {
     generation: u32,
     slots: Vec<SiteSlots>,
     records: Vec<Record>,
-    /// The records of the current tuple's arms, with the arms.
-    current: SmallVec<[(Arm, u32); 4]>,
+    /// The records of the current tuple's arms, with the arms (a Vec: its length and
+    /// indexing cost less than an inline vector's, and it grows once).
+    current: Vec<(Arm, u32)>,
     /// The core's local S1 and T1 with their counts.
     core: (f64, f64, [u16; 2]),
     made: u64,
@@ -173,7 +172,7 @@ impl<'a> Screener<'a> {
                 generation: 0,
                 slots: Vec::new(),
                 records: Vec::new(),
-                current: SmallVec::new(),
+                current: Vec::new(),
                 core: (f64::INFINITY, f64::INFINITY, [0; 2]),
                 made: 0,
             },
@@ -331,8 +330,9 @@ impl Cache {
             let counts = local_counts(parts, card.s1_ev, card.t1_ev);
             self.core = (card.s1_ev, card.t1_ev, counts);
         }
-        self.current.truncate(t.arms.len());
-        for (site, &arm) in t.arms.iter().enumerate() {
+        let arms = t.arms.as_slice();
+        self.current.truncate(arms.len());
+        for (site, &arm) in arms.iter().enumerate() {
             if self.current.get(site).is_some_and(|c| c.0 == arm) {
                 continue;
             }
