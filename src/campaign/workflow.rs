@@ -191,8 +191,8 @@ pub struct ScreenStage {
     /// A fitted model file; None = the shipped `data/fast-tier.toml`.
     pub model: Option<PathBuf>,
     /// Add the screen score's boosted trees (default): on the held-out library 97 % of the
-    /// π tier's top 100 kept at 10 % pass instead of 90 %, at about a quarter of the speed
-    /// per core (DEVELOPERS.md; the enumerator, at about 0.3 M/s, bounds the stage either way).
+    /// π tier's top 100 kept at 10 % pass instead of 90 %, at about 40 % of the speed per
+    /// core (DEVELOPERS.md; the enumerator, at about 0.3 M/s, bounds the stage either way).
     pub trees: bool,
     /// Temperature (K) and refractive index of the merit: the estimate stage's values.
     pub temperature_k: f64,

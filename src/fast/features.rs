@@ -156,6 +156,24 @@ pub(super) fn path_descriptors(p: &Path) -> [f64; 8] {
     ]
 }
 
+/// Whether a path of `gap` and `mixing` replaces the best so far: the lowest gap, then (within
+/// 10⁻⁹ eV) the larger mixing.
+#[inline(always)]
+pub(super) fn better_path(gap: f64, mixing: f64, best_gap: f64, best_mixing: f64) -> bool {
+    gap < best_gap - 1e-9 || (gap <= best_gap + 1e-9 && mixing > best_mixing)
+}
+
+/// Keeps the lowest and second-lowest of the values seen.
+#[inline(always)]
+pub(super) fn push_lowest(v: f64, lowest: &mut f64, second: &mut f64) {
+    if v < *lowest {
+        *second = *lowest;
+        *lowest = v;
+    } else if v < *second {
+        *second = v;
+    }
+}
+
 /// ln of a tuple's path count.
 #[inline(always)]
 pub(super) fn ln_paths(n: usize) -> f64 {
@@ -422,13 +440,7 @@ fn aggregate(
         };
         if let Some(k) = r.dimer {
             let e = &cards.pair_table.entries[k as usize];
-            let s1 = e.v.s1_ev;
-            if s1 < ps1_min {
-                ps1_second = ps1_min;
-                ps1_min = s1;
-            } else if s1 < ps1_second {
-                ps1_second = s1;
-            }
+            push_lowest(e.v.s1_ev, &mut ps1_min, &mut ps1_second);
             pt1_min = pt1_min.min(e.v.t1_ev);
             if pbest.is_none_or(|b| e.merit > b.merit) {
                 pbest = Some(e);
@@ -440,9 +452,7 @@ fn aggregate(
         mixing_sq_sum += p.mixing * p.mixing;
         best = match best {
             None => Some(p),
-            Some(b) if p.gap < b.gap - 1e-9 || (p.gap <= b.gap + 1e-9 && p.mixing > b.mixing) => {
-                Some(p)
-            }
+            Some(b) if better_path(p.gap, p.mixing, b.gap, b.mixing) => Some(p),
             keep => keep,
         };
     }

@@ -397,8 +397,8 @@ fn dot<const N: usize>(w: &[f64; N], x: &[f64; N]) -> f64 {
 }
 
 impl BoundModel {
-    /// Order by the screen score's ridge part alone (no boosted trees): about four times
-    /// faster per tuple, a coarser screen (DEVELOPERS.md: 90 % instead of 97 % of the held-out
+    /// Order by the screen score's ridge part alone (no boosted trees): about two and a half
+    /// times faster per tuple through the screener, a coarser screen (DEVELOPERS.md: 90 % instead of 97 % of the held-out
     /// top 100 kept at 10 % pass).
     pub fn drop_trees(&mut self) {
         self.forest = super::trees::Forest::default();
@@ -437,14 +437,15 @@ impl BoundModel {
     }
 
     /// The cascade's ordering key alone (equal to [`Self::predict`]'s `score`) and whether a
-    /// fragment was outside the fit: the screen's fast path.
+    /// fragment was outside the fit. A stream of tuples is scored faster by
+    /// [`super::screen::Screener`] (the screen's path, tested equal to this).
     #[inline]
     pub fn score(&self, cards: &CardSet, t: &Tuple) -> Option<(f64, bool)> {
         self.score_stream(&mut Describer::new(cards), t)
     }
 
     /// [`Self::score`] through a [`Describer`], which reuses the arm look-ups of the tuple
-    /// before: the screen's fast path over an enumeration's stream (the same numbers).
+    /// before (the same numbers): the reference the screener is tested against.
     #[inline]
     pub fn score_stream(&self, d: &mut Describer, t: &Tuple) -> Option<(f64, bool)> {
         let mut x = [0.0; N_FEATURES];

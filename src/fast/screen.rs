@@ -42,10 +42,25 @@ const AGG: [usize; 9] = [
     PAIR_T1_MIN,
     PAIR_S1_SECOND_GAP,
 ];
+/// The position of descriptor `f` in [`AGG`] (evaluated at compile time).
+const fn at(f: usize) -> usize {
+    let mut i = 0;
+    while i < AGG.len() {
+        if AGG[i] == f {
+            return i;
+        }
+        i += 1;
+    }
+    panic!("not an aggregated descriptor")
+}
+const AT_LOCAL_S1: usize = at(LOCAL_S1_MIN);
+const AT_LOCAL_T1: usize = at(LOCAL_T1_MIN);
+const AT_PAIR_S1: usize = at(PAIR_S1_MIN);
+const AT_PAIR_T1: usize = at(PAIR_T1_MIN);
 /// Positions in [`AGG`] of the aggregated descriptors among the products (lowest dimer S1
 /// and T1, second-lowest gap); every other product descriptor comes from the best dimer's
 /// entries.
-const AGG_IN_PRODUCTS: [usize; 3] = [6, 7, 8];
+const AGG_IN_PRODUCTS: [usize; 3] = [AT_PAIR_S1, AT_PAIR_T1, at(PAIR_S1_SECOND_GAP)];
 /// Index of the screen score among the model's targets.
 const SCREEN: usize = 3;
 
@@ -218,12 +233,7 @@ impl<'a> Screener<'a> {
                 continue;
             };
             if let Some(d) = &r.dimer {
-                if d.s1 < ps1 {
-                    second = ps1;
-                    ps1 = d.s1;
-                } else if d.s1 < second {
-                    second = d.s1;
-                }
+                features::push_lowest(d.s1, &mut ps1, &mut second);
                 pt1 = pt1.min(d.t1);
                 pair = [pair[0].min(d.counts[0]), pair[1].min(d.counts[1])];
                 if best_dimer.is_none_or(|b| d.merit > b.merit) {
@@ -232,15 +242,9 @@ impl<'a> Screener<'a> {
             }
             n_paths += 1;
             mixing_sq_sum += p.mixing_sq;
-            // The rule of `features::aggregate`: the lowest gap, then the larger mixing.
             best = match best {
-                None => Some(p),
-                Some(b)
-                    if p.gap < b.gap - 1e-9 || (p.gap <= b.gap + 1e-9 && p.mixing > b.mixing) =>
-                {
-                    Some(p)
-                }
-                keep => keep,
+                Some(b) if !features::better_path(p.gap, p.mixing, b.gap, b.mixing) => Some(b),
+                _ => Some(p),
             };
         }
         let b = best?;
@@ -410,10 +414,9 @@ fn slot_of(slots: &mut Vec<SiteSlots>, n: usize, site: usize, arm: Arm) -> &mut 
 
 /// Counts of the trees' thresholds below a local S1 and T1.
 fn local_counts(parts: &Parts, s1: f64, t1: f64) -> [u16; 2] {
-    parts
-        .trees
-        .as_ref()
-        .map_or([0; 2], |tp| counts(tp, [(3, s1), (2, t1)]))
+    parts.trees.as_ref().map_or([0; 2], |tp| {
+        counts(tp, [(AT_LOCAL_S1, s1), (AT_LOCAL_T1, t1)])
+    })
 }
 
 /// Counts below `values` of the [`AGG`] descriptors at the given positions (0 for a
@@ -618,10 +621,9 @@ fn dimer_part(
     DimerPart {
         s1,
         t1,
-        counts: parts
-            .trees
-            .as_ref()
-            .map_or([0; 2], |tp| counts(tp, [(6, s1), (7, t1)])),
+        counts: parts.trees.as_ref().map_or([0; 2], |tp| {
+            counts(tp, [(AT_PAIR_S1, s1), (AT_PAIR_T1, t1)])
+        }),
         merit: e.merit,
         exact: model.merit_const + e.log10_s1sq_f - e.v.delta_est_ev.max(0.0) * model.merit_per_ev,
         values,
