@@ -488,6 +488,20 @@ fn the_fast_score_equals_the_full_prediction() {
     assert!(screener.uses_records() && screener_ridge.uses_records());
     assert!(!screener_warmer.uses_records() && !Screener::new(&counted, set).uses_records());
     let mut ridge_stream = Describer::new(set);
+    // A model without the products (its own scores, not the shipped ones) is scored alike by
+    // the screener and the descriptor path.
+    let mut plain_model = model.clone();
+    plain_model.screen.products = false;
+    plain_model.bridged.screen_products.clear();
+    plain_model.multi_arm.screen_products.clear();
+    let plain = plain_model.bind(
+        set,
+        model.screen.refractive_index,
+        model.screen.temperature_k,
+    );
+    let mut screener_plain = Screener::new(&plain, set);
+    assert!(screener_plain.uses_records());
+    let mut plain_stream = Describer::new(set);
     let same =
         |a: Option<(f64, bool)>, b: Option<(f64, bool)>, t: &lumisift::combine::Tuple| match (a, b)
         {
@@ -539,6 +553,13 @@ fn the_fast_score_equals_the_full_prediction() {
             );
             if n % 3 == 0 {
                 same(screener_skipping.score(&t), streamed, &t);
+            }
+            if n % 5 == 0 {
+                same(
+                    screener_plain.score(&t),
+                    plain.score_stream(&mut plain_stream, &t),
+                    &t,
+                );
             }
             if n % 11 == 0 {
                 assert_eq!(screener_warmer.score(&t), warmer.score(set, &t));
