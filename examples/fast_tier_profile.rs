@@ -8,8 +8,8 @@
 //! Modes: `descriptors` (loop `loop_descriptors`), `score` (`loop_score`, the shipped screen
 //! score through the screener, the cascade's path), `ridge` (`loop_score_without_trees`, the
 //! same without the trees), `reference` (`loop_score_from_descriptors`, the score through
-//! the descriptors, what the screener is tested against); none runs all four. Instructions per tuple
-//! = the "Collected" count / the tuple count printed. The tuples are the benchmark's
+//! the descriptors, what the screener is tested against); none runs all four. Instructions
+//! per tuple = the "Collected" count / the tuple count printed. The tuples are the benchmark's
 //! (`benches/fast.rs`): blocks of 1,000 consecutive admitted tuples, one block in every
 //! 7,000, so every architecture is represented and each block is the stream the screen meets;
 //! `every7` takes every 7th tuple instead (no two consecutive), `runs` ten runs of 10,000

@@ -34,10 +34,9 @@ fn main() {
     let (mut runs, mut scored) = (0u64, 0u64);
     let mut key = None;
     for t in &all {
-        let donor_side = t.architecture == Architecture::ADA
-            || set.cards[t.core].role == lumisift::model::Role::Donor;
-        if key != Some((t.core, donor_side)) {
-            key = Some((t.core, donor_side));
+        let run = (t.core, lumisift::fast::features::core_is_donor(&set, t));
+        if key != Some(run) {
+            key = Some(run);
             runs += 1;
         }
         scored += u64::from(screener.score(t).is_some());

@@ -126,16 +126,20 @@ pub fn half_descriptors(cards: &CardSet, k: u32) -> [f64; 3] {
 /// The descriptors of the best donor–acceptor path alone ([`path_descriptors`]; the constant
 /// rides with them).
 pub const PATH_FEATURES: [usize; 8] = [0, 1, 2, 3, 4, 5, 10, 11];
-/// The descriptors aggregated over a tuple's arms: ln of the path count, Σ mixing², the
-/// lowest local T1 and S1, the two hinges on gap − local S1, the lowest dimer S1 and T1, and
-/// the gap to the second-lowest dimer S1.
+// The descriptors aggregated over a tuple's arms (indices into the descriptor vector).
+/// ln of the path count.
 pub const LN_PATHS: usize = 6;
+/// Σ mixing² over the paths.
 pub const MIXING_SQ_SUM: usize = 7;
+/// Lowest local T1 and S1 of the core and the arms' fragments.
 pub const LOCAL_T1_MIN: usize = 8;
 pub const LOCAL_S1_MIN: usize = 9;
+/// The two hinges on the best path's gap − the lowest local S1.
 pub const HINGES: [usize; 2] = [12, 13];
+/// Lowest S1 and T1 of the arms' known dimers.
 pub const PAIR_S1_MIN: usize = 14;
 pub const PAIR_T1_MIN: usize = 15;
+/// Gap from the lowest to the second-lowest dimer S1.
 pub const PAIR_S1_SECOND_GAP: usize = 20;
 
 /// The best path's descriptors, in [`PATH_FEATURES`] order.
@@ -238,7 +242,7 @@ pub(super) struct ArmRecord {
 
 /// Whether the core of `t` is the donor side of its paths.
 #[inline(always)]
-pub(super) fn core_is_donor(cards: &CardSet, t: &Tuple) -> bool {
+pub fn core_is_donor(cards: &CardSet, t: &Tuple) -> bool {
     t.architecture == Architecture::ADA || cards.cards[t.core].role == Role::Donor
 }
 

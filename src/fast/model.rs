@@ -398,8 +398,8 @@ fn dot<const N: usize>(w: &[f64; N], x: &[f64; N]) -> f64 {
 
 impl BoundModel {
     /// Order by the screen score's ridge part alone (no boosted trees): about two and a half
-    /// times faster per tuple through the screener, a coarser screen (DEVELOPERS.md: 90 % instead of 97 % of the held-out
-    /// top 100 kept at 10 % pass).
+    /// times faster per tuple through the screener, a coarser screen (DEVELOPERS.md: 90 %
+    /// instead of 97 % of the held-out top 100 kept at 10 % pass).
     pub fn drop_trees(&mut self) {
         self.forest = super::trees::Forest::default();
         self.entry_masks = None;

@@ -65,7 +65,6 @@ const AGG_IN_PRODUCTS: [usize; 3] = [AT_PAIR_S1, AT_PAIR_T1, at(PAIR_S1_SECOND_G
 const SCREEN: usize = 3;
 
 /// What one (core, site, arm) contributes: computed once per run of its core.
-#[derive(Clone)]
 struct Record {
     /// Lowest local S1 and T1 of the arm's fragments, and their counts of the trees'
     /// thresholds below ([`LOCAL_S1_MIN`], [`LOCAL_T1_MIN`]).
@@ -78,7 +77,6 @@ struct Record {
 }
 
 /// An arm as its tuple's best donor–acceptor path.
-#[derive(Clone)]
 struct PathPart {
     gap: f64,
     mixing: f64,
@@ -96,7 +94,6 @@ struct PathPart {
 }
 
 /// An arm's dimer as its tuple's best dimer (or the table's neutral entry).
-#[derive(Clone)]
 struct DimerPart {
     s1: f64,
     t1: f64,
@@ -261,6 +258,7 @@ impl<'a> Screener<'a> {
         let c = usize::from(!b.bridged);
         let h = features::hinges(b.gap, s1);
         let gap2 = features::second_gap(second, ps1);
+        // In [`AGG`] order.
         let xa = [
             features::ln_paths(n_paths),
             mixing_sq_sum,
@@ -331,7 +329,7 @@ impl Cache {
             self.records.clear();
             self.current.clear();
             let card = &cards.cards[t.core];
-            let counts = local_counts(parts, card.s1_ev, card.t1_ev);
+            let counts = local_counts(parts.trees.as_ref(), card.s1_ev, card.t1_ev);
             self.core = (card.s1_ev, card.t1_ev, counts);
         }
         let arms = t.arms.as_slice();
@@ -370,11 +368,11 @@ impl Cache {
         self.records.push(Record {
             s1: r.s1,
             t1: r.t1,
-            counts: local_counts(parts, r.s1, r.t1),
-            path: r.path.map(|p| path_part(model, parts, &p)),
+            counts: local_counts(parts.trees.as_ref(), r.s1, r.t1),
+            path: r.path.map(|p| path_part(model, parts.trees.as_ref(), &p)),
             dimer: r
                 .dimer
-                .map(|k| dimer_part(model, cards, parts, Some(k), r.halves)),
+                .map(|k| dimer_part(model, cards, parts.trees.as_ref(), Some(k), r.halves)),
         });
         self.made += 1;
         i
@@ -413,8 +411,8 @@ fn slot_of(slots: &mut Vec<SiteSlots>, n: usize, site: usize, arm: Arm) -> &mut 
 }
 
 /// Counts of the trees' thresholds below a local S1 and T1.
-fn local_counts(parts: &Parts, s1: f64, t1: f64) -> [u16; 2] {
-    parts.trees.as_ref().map_or([0; 2], |tp| {
+fn local_counts(trees: Option<&TreeParts>, s1: f64, t1: f64) -> [u16; 2] {
+    trees.map_or([0; 2], |tp| {
         counts(tp, [(AT_LOCAL_S1, s1), (AT_LOCAL_T1, t1)])
     })
 }
@@ -427,8 +425,9 @@ fn counts(tp: &TreeParts, values: [(usize, f64); 2]) -> [u16; 2] {
 
 impl<'a> Parts<'a> {
     /// None when the model is not in the form the records serve: bound at a temperature
-    /// other than the screen score's, trees not in one set of split masks with per-entry
-    /// rows, or a descriptor layout the records do not split (guarded, tested).
+    /// other than the screen score's, or trees not in one set of split masks with per-entry
+    /// rows. (The descriptor layout the records assume is fixed at compile time and tested:
+    /// `the_descriptor_layout_splits_as_the_records_assume`.)
     fn new(model: &'a BoundModel, cards: &CardSet) -> Option<Parts<'a>> {
         let shift = model.screen_shift?;
         let trees = match model.entry_masked_trees() {
@@ -452,9 +451,6 @@ impl<'a> Parts<'a> {
             None if model.forest().n_trees() == 0 && model.forest().tables().is_empty() => None,
             None => return None,
         };
-        if !layout_is_split() {
-            return None;
-        }
         let mut agg_quad = [[[0.0; 3]; 3]; 2];
         for (c, aq) in agg_quad.iter_mut().enumerate() {
             for (a, row) in aq.iter_mut().enumerate() {
@@ -467,60 +463,20 @@ impl<'a> Parts<'a> {
                 }
             }
         }
-        let mut parts = Parts {
+        let fallback = dimer_part(model, cards, trees.as_ref(), None, None);
+        let parts = Parts {
             agg: std::array::from_fn(|c| AGG.map(|f| model.w[c][SCREEN][f])),
             agg_quad,
             shift,
             trees,
-            fallback: empty_dimer(),
+            fallback,
         };
-        let fallback = dimer_part(model, cards, &parts, None, None);
-        parts.fallback = fallback;
         Some(parts)
     }
 }
 
-/// Whether the descriptors split as the records assume: path, dimer, halves and aggregated
-/// descriptors cover every descriptor once, the products are the dimer's, the halves' and
-/// [`AGG_IN_PRODUCTS`], and the bridge slopes fall on path or dimer descriptors.
-fn layout_is_split() -> bool {
-    let mut seen = [0u8; N_FEATURES];
-    for &f in PATH_FEATURES
-        .iter()
-        .chain(&DIMER_FEATURES)
-        .chain(HALF_FEATURES.iter().flatten())
-        .chain(&AGG)
-    {
-        seen[f] += 1;
-    }
-    let entry =
-        |f: &usize| DIMER_FEATURES.contains(f) || HALF_FEATURES.iter().flatten().any(|h| h == f);
-    seen.iter().all(|&n| n == 1)
-        && (PRODUCT_FIRST..N_FEATURES)
-            .all(|f| entry(&f) || AGG_IN_PRODUCTS.iter().any(|&a| AGG[a] == f))
-        && AGG_IN_PRODUCTS.iter().all(|&a| AGG[a] >= PRODUCT_FIRST)
-        && BRIDGE_SLOPE_FEATURES
-            .iter()
-            .all(|f| PATH_FEATURES.contains(f) || DIMER_FEATURES.contains(f))
-}
-
-fn empty_dimer() -> DimerPart {
-    DimerPart {
-        s1: 0.0,
-        t1: 0.0,
-        counts: [0; 2],
-        merit: 0.0,
-        exact: 0.0,
-        values: [0.0; 4],
-        linear: [0.0; 2],
-        quad: [0.0; 2],
-        cross: [[0.0; 3]; 2],
-        mask: [0; super::trees::MASK_WORDS],
-    }
-}
-
 /// A path's part (class from its bridge: bridged or several direct arms).
-fn path_part(model: &BoundModel, parts: &Parts, p: &Path) -> PathPart {
+fn path_part(model: &BoundModel, trees: Option<&TreeParts>, p: &Path) -> PathPart {
     let c = usize::from(p.bridge.is_none());
     let v = features::path_descriptors(p);
     let w = &model.w[c][SCREEN];
@@ -549,7 +505,7 @@ fn path_part(model: &BoundModel, parts: &Parts, p: &Path) -> PathPart {
         }
     }
     let mut mask = [0; super::trees::MASK_WORDS];
-    if let Some(tp) = &parts.trees {
+    if let Some(tp) = trees {
         for (slot, x) in tp.path_slots.iter().zip(v) {
             if let Some(k) = *slot {
                 or_into(&mut mask, tp.masks.row(k, x));
@@ -573,7 +529,7 @@ fn path_part(model: &BoundModel, parts: &Parts, p: &Path) -> PathPart {
 fn dimer_part(
     model: &BoundModel,
     cards: &CardSet,
-    parts: &Parts,
+    trees: Option<&TreeParts>,
     entry: Option<u32>,
     halves: Option<(u32, u32)>,
 ) -> DimerPart {
@@ -613,7 +569,7 @@ fn dimer_part(
             }
         }
     }
-    let mask = match &parts.trees {
+    let mask = match trees {
         Some(tp) => tp.entries.pre(entry, halves),
         None => [0; super::trees::MASK_WORDS],
     };
@@ -621,7 +577,7 @@ fn dimer_part(
     DimerPart {
         s1,
         t1,
-        counts: parts.trees.as_ref().map_or([0; 2], |tp| {
+        counts: trees.map_or([0; 2], |tp| {
             counts(tp, [(AT_PAIR_S1, s1), (AT_PAIR_T1, t1)])
         }),
         merit: e.merit,
@@ -637,6 +593,31 @@ fn dimer_part(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Whether the descriptors split as the records assume: path, dimer, halves and aggregated
+    /// descriptors cover every descriptor once, the products are the dimer's, the halves' and
+    /// [`AGG_IN_PRODUCTS`], and the bridge slopes fall on path or dimer descriptors.
+    fn layout_is_split() -> bool {
+        let mut seen = [0u8; N_FEATURES];
+        for &f in PATH_FEATURES
+            .iter()
+            .chain(&DIMER_FEATURES)
+            .chain(HALF_FEATURES.iter().flatten())
+            .chain(&AGG)
+        {
+            seen[f] += 1;
+        }
+        let entry = |f: &usize| {
+            DIMER_FEATURES.contains(f) || HALF_FEATURES.iter().flatten().any(|h| h == f)
+        };
+        seen.iter().all(|&n| n == 1)
+            && (PRODUCT_FIRST..N_FEATURES)
+                .all(|f| entry(&f) || AGG_IN_PRODUCTS.iter().any(|&a| AGG[a] == f))
+            && AGG_IN_PRODUCTS.iter().all(|&a| AGG[a] >= PRODUCT_FIRST)
+            && BRIDGE_SLOPE_FEATURES
+                .iter()
+                .all(|f| PATH_FEATURES.contains(f) || DIMER_FEATURES.contains(f))
+    }
 
     /// The records' split of the descriptors is the descriptors' layout (a descriptor added
     /// or moved without the screener knowing would silently drop out of the score).

@@ -541,13 +541,12 @@ impl SplitMasks {
             .iter()
             .map(|t| t.iter().fold(0.0f64, |m, v| m.max(v.abs())))
             .sum();
-        let mut unit = 1.0f64;
-        while bound / unit < f64::from(i32::MAX / 4) && unit > 1e-12 {
-            unit /= 2.0;
-        }
-        while bound / unit >= f64::from(i32::MAX / 2) {
-            unit *= 2.0;
-        }
+        // The finest power of two at which every partial sum stays within i32::MAX / 2.
+        let unit = if bound > 0.0 {
+            (bound / f64::from(i32::MAX / 2)).log2().ceil().exp2()
+        } else {
+            1.0
+        };
         let pairs = sums
             .iter()
             .map(|t| t.map(|v| (v / unit).round() as i32))
@@ -627,7 +626,7 @@ impl SplitMasks {
         self.leaf_sum(&mask)
     }
 
-    /// Σ of the trees' leaves for a mask: one table look-up per byte, into eight partial
+    /// Σ of the trees' leaves for a mask: one table look-up per byte, into two integer partial
     /// sums (independent chains the CPU overlaps).
     #[inline(always)]
     pub(crate) fn leaf_sum(&self, mask: &Mask) -> f64 {
@@ -639,7 +638,8 @@ impl SplitMasks {
         let mut acc = [0i32; 2];
         for (b, tables) in bytes.chunks_exact(8).zip(self.pairs.chunks_exact(8)) {
             for k in 0..8 {
-                // No overflow: |Σ| ≤ i32::MAX / 2 by the choice of unit.
+                // No overflow: |Σ| ≤ i32::MAX / 2 by the choice of unit (plus half a unit of
+                // rounding per byte).
                 acc[k & 1] = acc[k & 1].wrapping_add(tables[k][usize::from(b[k])]);
             }
         }

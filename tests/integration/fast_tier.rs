@@ -8,7 +8,7 @@ use lumisift::combine::{EnumerateParams, Enumerator, Tuple, TupleEvent};
 use lumisift::fast::fit::{evaluate, fit_model, screen_fit};
 use lumisift::fast::pairs::{PairCache, dimer_jobs};
 use lumisift::fast::{CardSet, Describer, FastModel, N_FEATURES, Screener, TupleClass};
-use lumisift::model::{Architecture, Role};
+use lumisift::model::Architecture;
 use lumisift::pi::params::PppParams;
 
 #[path = "../support/fasttier.rs"]
@@ -523,10 +523,9 @@ fn the_fast_score_equals_the_full_prediction() {
     en.for_each(|e| {
         if let TupleEvent::Admitted(t) = e {
             n += 1;
-            let donor_side =
-                t.architecture == Architecture::ADA || set.cards[t.core].role == Role::Donor;
-            if key != Some((t.core, donor_side)) {
-                key = Some((t.core, donor_side));
+            let run_key = (t.core, lumisift::fast::features::core_is_donor(set, &t));
+            if key != Some(run_key) {
+                key = Some(run_key);
                 run += 1;
             }
             for (site, &arm) in t.arms.iter().enumerate() {
