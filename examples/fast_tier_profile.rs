@@ -13,7 +13,8 @@
 //! (`benches/fast.rs`): blocks of 1,000 consecutive admitted tuples, one block in every
 //! 7,000, so every architecture is represented and each block is the stream the screen meets;
 //! `every7` takes every 7th tuple instead (no two consecutive), `runs` ten runs of 10,000
-//! consecutive tuples (closer to a whole screen's stream).
+//! consecutive tuples (closer to a whole screen's stream), `whole` the whole enumeration
+//! (2.43·10^6 tuples: the stream a screen of the whole library meets).
 use std::hint::black_box;
 
 use lumisift::combine::Tuple;
@@ -82,6 +83,8 @@ fn main() {
         fast_tuples::Sample::Every7
     } else if std::env::args().any(|a| a == "runs") {
         fast_tuples::Sample::Runs
+    } else if std::env::args().any(|a| a == "whole") {
+        fast_tuples::Sample::Whole
     } else {
         fast_tuples::Sample::Blocks
     };

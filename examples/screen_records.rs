@@ -47,6 +47,11 @@ fn main() {
         screener.records_made(),
         100.0 * screener.records_made() as f64 / tuples as f64,
     );
+    let (hits, misses) = screener.memo_counts();
+    println!(
+        "early trees: summed for {misses} tuples, found for {hits} ({:.1} % found)",
+        100.0 * hits as f64 / (hits + misses).max(1) as f64
+    );
     let mut ridge = bound.clone();
     ridge.drop_trees();
     for (name, model) in [("with the trees", &bound), ("without the trees", &ridge)] {

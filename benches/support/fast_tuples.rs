@@ -20,9 +20,13 @@ pub enum Sample {
     /// Ten runs of 10,000 consecutive tuples, one run in every 240,000 (the shipped library
     /// has 2.43·10^6): longer stretches of one core, closer to a whole screen.
     Runs,
+    /// The whole enumeration, in order (2.43·10^6 tuples, about 0.4 GB): the stream a screen
+    /// of the whole library meets.
+    Whole,
 }
 
-/// 100,000 admitted tuples of `lib` (all architectures, Dn-A up to four mixed donors).
+/// 100,000 admitted tuples of `lib` (all architectures, Dn-A up to four mixed donors), or
+/// every one ([`Sample::Whole`]).
 pub fn tuples(lib: &Library, sample: Sample) -> Vec<Tuple> {
     let params = EnumerateParams {
         architectures: Architecture::ALL.to_vec(),
@@ -39,13 +43,14 @@ pub fn tuples(lib: &Library, sample: Sample) -> Vec<Tuple> {
                 Sample::Blocks => k % 7000 < 1000,
                 Sample::Every7 => k.is_multiple_of(7),
                 Sample::Runs => k % 240_000 < 10_000,
+                Sample::Whole => true,
             };
             if take {
                 tuples.push(t);
             }
             k += 1;
         }
-        if tuples.len() >= 100_000 {
+        if sample != Sample::Whole && tuples.len() >= 100_000 {
             ControlFlow::Break(())
         } else {
             ControlFlow::Continue(())

@@ -350,7 +350,15 @@ impl FastModel {
             }
             q
         };
-        let forest = super::trees::Forest::new(&self.screen_trees, &self.screen.tree_groups);
+        // The descriptors summed over a tuple's arms change with every arm, the others only
+        // with its best path, best dimer and lowest energies: the screener sums the trees on
+        // the latter once per combination of those ([`super::screen`]), so the trees asking
+        // about a sum go last in the mask.
+        let forest = super::trees::Forest::new(
+            &self.screen_trees,
+            &self.screen.tree_groups,
+            &[super::features::LN_PATHS, super::features::MIXING_SQ_SUM],
+        );
         BoundModel {
             w: [block(&self.bridged), block(&self.multi_arm)],
             q: [upper(&self.bridged), upper(&self.multi_arm)],

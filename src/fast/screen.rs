@@ -27,7 +27,7 @@ use super::features::{
     PAIR_T1_MIN, PATH_FEATURES, Path,
 };
 use super::model::{BoundModel, EntryMasks, N_PRODUCT_FEATURES, PRODUCT_FIRST};
-use super::trees::{Mask, SplitMasks, or_into};
+use super::trees::{Counter, Mask, SplitMasks, or_into};
 use crate::combine::{Arm, Tuple};
 
 /// The descriptors aggregated over a tuple's arms, in the order of the screener's sums.
@@ -53,6 +53,11 @@ const fn at(f: usize) -> usize {
     }
     panic!("not an aggregated descriptor")
 }
+const AT_LN: usize = at(LN_PATHS);
+const AT_MSS: usize = at(MIXING_SQ_SUM);
+const AT_H0: usize = at(HINGES[0]);
+const AT_H1: usize = at(HINGES[1]);
+const AT_GAP2: usize = at(PAIR_S1_SECOND_GAP);
 const AT_LOCAL_S1: usize = at(LOCAL_S1_MIN);
 const AT_LOCAL_T1: usize = at(LOCAL_T1_MIN);
 const AT_PAIR_S1: usize = at(PAIR_S1_MIN);
@@ -60,7 +65,7 @@ const AT_PAIR_T1: usize = at(PAIR_T1_MIN);
 /// Positions in [`AGG`] of the aggregated descriptors among the products (lowest dimer S1
 /// and T1, second-lowest gap); every other product descriptor comes from the best dimer's
 /// entries.
-const AGG_IN_PRODUCTS: [usize; 3] = [AT_PAIR_S1, AT_PAIR_T1, at(PAIR_S1_SECOND_GAP)];
+const AGG_IN_PRODUCTS: [usize; 3] = [AT_PAIR_S1, AT_PAIR_T1, AT_GAP2];
 /// Index of the screen score among the model's targets.
 const SCREEN: usize = 3;
 
@@ -114,6 +119,86 @@ struct DimerPart {
     mask: Mask,
 }
 
+/// What a tuple's arms give, folded site by site: the minima, the best path and the best
+/// dimer (record indices), the path count and the sum over paths.
+#[derive(Clone, Copy)]
+struct Fold {
+    /// Lowest local S1 and T1 (the core's and the arms' fragments') and their counts.
+    s1: f64,
+    t1: f64,
+    local: [u16; 2],
+    /// The best path's record (u32::MAX: none yet), with its gap and mixing.
+    best: u32,
+    best_gap: f64,
+    best_mixing: f64,
+    n_paths: u32,
+    mixing_sq_sum: f64,
+    /// The record of the best dimer by merit (u32::MAX: none yet), with its merit.
+    dimer: u32,
+    dimer_merit: f64,
+    /// Lowest and second-lowest dimer S1, lowest dimer T1, and the counts of the lowest.
+    ps1: f64,
+    second: f64,
+    pt1: f64,
+    pair: [u16; 2],
+}
+
+impl Fold {
+    fn start((s1, t1, local): (f64, f64, [u16; 2])) -> Fold {
+        Fold {
+            s1,
+            t1,
+            local,
+            best: u32::MAX,
+            best_gap: f64::INFINITY,
+            best_mixing: 0.0,
+            n_paths: 0,
+            mixing_sq_sum: 0.0,
+            dimer: u32::MAX,
+            dimer_merit: f64::NEG_INFINITY,
+            ps1: f64::INFINITY,
+            second: f64::INFINITY,
+            pt1: f64::INFINITY,
+            pair: [u16::MAX; 2],
+        }
+    }
+
+    /// This fold with record `r` (index `i`) of the next arm.
+    #[inline(always)]
+    fn with(mut self, r: &Record, i: u32) -> Fold {
+        if r.s1 < self.s1 {
+            self.s1 = r.s1;
+        }
+        if r.t1 < self.t1 {
+            self.t1 = r.t1;
+        }
+        self.local = [
+            self.local[0].min(r.counts[0]),
+            self.local[1].min(r.counts[1]),
+        ];
+        let Some(p) = &r.path else {
+            return self;
+        };
+        if let Some(d) = &r.dimer {
+            features::push_lowest(d.s1, &mut self.ps1, &mut self.second);
+            self.pt1 = self.pt1.min(d.t1);
+            self.pair = [self.pair[0].min(d.counts[0]), self.pair[1].min(d.counts[1])];
+            // The first dimer, then strictly better ones.
+            if self.dimer == u32::MAX || d.merit > self.dimer_merit {
+                (self.dimer, self.dimer_merit) = (i, d.merit);
+            }
+        }
+        self.n_paths += 1;
+        self.mixing_sq_sum += p.mixing_sq;
+        if self.best == u32::MAX
+            || features::better_path(p.gap, p.mixing, self.best_gap, self.best_mixing)
+        {
+            (self.best, self.best_gap, self.best_mixing) = (i, p.gap, p.mixing);
+        }
+        self
+    }
+}
+
 /// The bound model's parts in the screener's form.
 struct Parts<'a> {
     /// Per class, the screen coefficients of [`AGG`].
@@ -133,11 +218,78 @@ struct TreeParts<'a> {
     path_slots: [Option<usize>; 8],
     /// Slots of [`AGG`]'s descriptors (None: no tree asks about it).
     slots: [Option<usize>; 9],
-    /// Rows of the path count's descriptor for 0..8 paths (empty: no tree asks about it).
-    ln_rows: Vec<Mask>,
-    /// A row of no splits.
-    zero: Mask,
+    /// Per [`AGG`] descriptor: its threshold counter (None: no tree asks about it), and the
+    /// index of its row for a count of 0 in the masks' rows (the row for count c is c
+    /// places on; a descriptor no tree asks about has a row of no splits, count 0).
+    counters: [Option<&'a Counter>; 9],
+    first_row: [usize; 9],
+    /// The path count's counts of thresholds below for 0..8 paths.
+    ln_counts: Vec<usize>,
+    /// Mask words in use, and the first word of the late trees, those asking about a sum
+    /// over the arms ([`SplitMasks::late_word`]). The early trees' sum is kept per
+    /// [`MemoKey`]; the late trees are summed for every tuple.
+    words: usize,
+    late_word: usize,
+    /// Per [`AGG`] descriptor: whether a late tree asks about it (its count is then needed
+    /// for every tuple, not only when the early trees are summed).
+    late_asks: [bool; 9],
 }
+
+/// Most early-tree sums kept for a run of a core (about 24 MiB; a choice of this tool). A
+/// run with more distinct keys starts its memo afresh when it is full.
+const MEMO_CAP: usize = 1 << 20;
+
+/// What fixes the early trees' mask: the best path's and the best dimer's records (the
+/// latter `u32::MAX` for the neutral entry), the counts of thresholds below the second
+/// dimer gap, the lowest local T1 and the lowest dimer T1 and S1, and the lowest local S1
+/// itself (with the best path's gap it fixes the hinges, and it fixes its own count).
+/// Every other aggregated descriptor is a sum over the arms, which early trees do not ask
+/// about.
+#[derive(Clone, Copy, PartialEq, Eq)]
+struct MemoKey {
+    records: u64,
+    counts: u64,
+    s1_bits: u64,
+}
+
+impl std::hash::Hash for MemoKey {
+    #[inline(always)]
+    fn hash<H: std::hash::Hasher>(&self, h: &mut H) {
+        h.write_u64(self.records);
+        h.write_u64(self.counts);
+        h.write_u64(self.s1_bits);
+    }
+}
+
+/// A multiply–fold hash for [`MemoKey`] (the memo's keys are small integers that the
+/// default keyed hash spends tens of instructions on; no adversary picks them).
+#[derive(Default)]
+struct MemoHasher(u64);
+
+impl std::hash::Hasher for MemoHasher {
+    #[inline(always)]
+    fn write_u64(&mut self, x: u64) {
+        // The 128-bit product folded: every input bit reaches the low bits (the table index)
+        // and the high bits (the table's tag). The odd constant is 2^64 / φ.
+        let p = u128::from(self.0 ^ x) * 0x9E37_79B9_7F4A_7C15;
+        self.0 = (p as u64) ^ ((p >> 64) as u64);
+    }
+
+    fn write(&mut self, bytes: &[u8]) {
+        for c in bytes.chunks(8) {
+            let mut w = [0u8; 8];
+            w[..c.len()].copy_from_slice(c);
+            self.write_u64(u64::from_le_bytes(w));
+        }
+    }
+
+    #[inline(always)]
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type Memo = std::collections::HashMap<MemoKey, i32, std::hash::BuildHasherDefault<MemoHasher>>;
 
 /// Per site, where each arm's record is: the generation it was made in and its index.
 #[derive(Default)]
@@ -167,9 +319,17 @@ struct Cache {
     /// The records of the current tuple's arms, with the arms (a Vec: its length and
     /// indexing cost less than an inline vector's, and it grows once).
     current: Vec<(Arm, u32)>,
+    /// `folds[k]`: the core folded with the records of the current tuple's first k arms.
+    /// A stream mostly changes a tuple's last arm (88 % of the shipped library's
+    /// enumeration), so a tuple mostly folds one record onto the fold before it.
+    folds: Vec<Fold>,
     /// The core's local S1 and T1 with their counts.
     core: (f64, f64, [u16; 2]),
     made: u64,
+    /// The early trees' sums (integer leaf units) of this run of the core, by key.
+    memo: Memo,
+    memo_hits: u64,
+    memo_misses: u64,
 }
 
 impl<'a> Screener<'a> {
@@ -185,8 +345,12 @@ impl<'a> Screener<'a> {
                 slots: Vec::new(),
                 records: Vec::new(),
                 current: Vec::new(),
+                folds: Vec::new(),
                 core: (f64::INFINITY, f64::INFINITY, [0; 2]),
                 made: 0,
+                memo: Memo::default(),
+                memo_hits: 0,
+                memo_misses: 0,
             },
         }
     }
@@ -201,6 +365,11 @@ impl<'a> Screener<'a> {
         self.cache.made
     }
 
+    /// Tuples whose early trees' sum was found in the memo, and those that summed them.
+    pub fn memo_counts(&self) -> (u64, u64) {
+        (self.cache.memo_hits, self.cache.memo_misses)
+    }
+
     /// The screen score of `t` and whether a fragment was outside the fit: the numbers of
     /// [`BoundModel::score`]. None when `t` has no donor–acceptor path.
     #[inline]
@@ -209,50 +378,28 @@ impl<'a> Screener<'a> {
             return self.model.score_stream(&mut self.describer, t);
         };
         self.cache.sync(t, self.cards, self.model, parts);
-        let records = &self.cache.records;
-        let (mut s1, mut t1, mut local) = self.cache.core;
-        let mut best: Option<&PathPart> = None;
-        let mut n_paths = 0usize;
-        let mut mixing_sq_sum = 0.0;
-        let mut best_dimer: Option<&DimerPart> = None;
-        let (mut ps1, mut second, mut pt1) = (f64::INFINITY, f64::INFINITY, f64::INFINITY);
-        let mut pair = [u16::MAX; 2];
-        for &(_, i) in &self.cache.current {
-            let r = &records[i as usize];
-            if r.s1 < s1 {
-                s1 = r.s1;
-            }
-            if r.t1 < t1 {
-                t1 = r.t1;
-            }
-            local = [local[0].min(r.counts[0]), local[1].min(r.counts[1])];
-            let Some(p) = &r.path else {
-                continue;
-            };
-            if let Some(d) = &r.dimer {
-                features::push_lowest(d.s1, &mut ps1, &mut second);
-                pt1 = pt1.min(d.t1);
-                pair = [pair[0].min(d.counts[0]), pair[1].min(d.counts[1])];
-                if best_dimer.is_none_or(|b| d.merit > b.merit) {
-                    best_dimer = Some(d);
-                }
-            }
-            n_paths += 1;
-            mixing_sq_sum += p.mixing_sq;
-            best = match best {
-                Some(b) if !features::better_path(p.gap, p.mixing, b.gap, b.mixing) => Some(b),
-                _ => Some(p),
-            };
-        }
-        let b = best?;
-        let d = match best_dimer {
+        let Cache {
+            records,
+            folds,
+            memo,
+            memo_hits,
+            memo_misses,
+            ..
+        } = &mut self.cache;
+        let f = *folds.last()?;
+        let (s1, t1, local, n_paths) = (f.s1, f.t1, f.local, f.n_paths as usize);
+        let (mut ps1, second, mut pt1, mut pair) = (f.ps1, f.second, f.pt1, f.pair);
+        let mixing_sq_sum = f.mixing_sq_sum;
+        let bi = f.best;
+        let b = records.get(bi as usize)?.path.as_ref()?;
+        let (d, di) = match records.get(f.dimer as usize).and_then(|r| r.dimer.as_ref()) {
             // One direct arm with a known dimer: the tuple is its dimer.
             Some(d) if !b.bridged && n_paths == 1 => return Some((d.exact, false)),
-            Some(d) => d,
+            Some(d) => (d, f.dimer),
             None => {
                 let f = &parts.fallback;
                 (ps1, pt1, pair) = (f.s1, f.t1, f.counts);
-                f
+                (f, u32::MAX)
             }
         };
         let c = usize::from(!b.bridged);
@@ -290,28 +437,81 @@ impl<'a> Screener<'a> {
         }
         if let Some(tp) = &parts.trees {
             let m = tp.masks;
-            // Every row first (a descriptor no tree asks about: the zero row), then one pass
-            // OR-ing them word by word (the mask stays in registers).
-            let row = |slot: Option<usize>, v: f64| slot.map_or(&tp.zero, |k| m.row(k, v));
-            let row_at = |slot: Option<usize>, c: u16| {
-                slot.map_or(&tp.zero, |k| m.row_at(k, usize::from(c)))
+            let rows = m.rows();
+            let count = |a: usize| tp.counters[a].map_or(0, |c| c.below(xa[a]));
+            // Counts of thresholds below, in [`AGG`] order; the hinges' only when a late
+            // tree asks about them (otherwise when the early trees are summed).
+            let mut counts = [0usize; 9];
+            counts[AT_LN] = match tp.ln_counts.get(n_paths) {
+                Some(&c) => c,
+                None => count(AT_LN),
             };
-            let [ln, mss, lt1, ls1, h0, h1, ps, pt, g2] = tp.slots;
-            let rows: [&Mask; 11] = [
+            counts[AT_MSS] = count(AT_MSS);
+            counts[AT_GAP2] = count(AT_GAP2);
+            counts[AT_LOCAL_T1] = usize::from(local[1]);
+            counts[AT_LOCAL_S1] = usize::from(local[0]);
+            counts[AT_PAIR_T1] = usize::from(pair[1]);
+            counts[AT_PAIR_S1] = usize::from(pair[0]);
+            for a in [AT_H0, AT_H1] {
+                if tp.late_asks[a] {
+                    counts[a] = count(a);
+                }
+            }
+            let row = |counts: &[usize; 9], a: usize| &rows[tp.first_row[a] + counts[a]];
+            let key = MemoKey {
+                records: u64::from(bi) << 32 | u64::from(di),
+                counts: (counts[AT_GAP2]
+                    | counts[AT_LOCAL_T1] << 16
+                    | counts[AT_PAIR_T1] << 32
+                    | counts[AT_PAIR_S1] << 48) as u64,
+                s1_bits: s1.to_bits(),
+            };
+            let early = match memo.get(&key) {
+                Some(&v) => {
+                    *memo_hits += 1;
+                    v
+                }
+                None => {
+                    *memo_misses += 1;
+                    let mut counts = counts;
+                    counts[AT_H0] = count(AT_H0);
+                    counts[AT_H1] = count(AT_H1);
+                    let early_rows = [
+                        &b.mask,
+                        &d.mask,
+                        row(&counts, AT_H0),
+                        row(&counts, AT_H1),
+                        row(&counts, AT_GAP2),
+                        row(&counts, AT_LOCAL_T1),
+                        row(&counts, AT_LOCAL_S1),
+                        row(&counts, AT_PAIR_T1),
+                        row(&counts, AT_PAIR_S1),
+                    ];
+                    let v = m.partial_sum(&early_rows, 0, tp.late_word);
+                    if memo.len() >= MEMO_CAP {
+                        memo.clear();
+                    }
+                    memo.insert(key, v);
+                    v
+                }
+            };
+            // A descriptor no late tree asks about has count 0 here: its row at 0 has no
+            // splits, and its rows have none in the late words anyway.
+            let late_rows = [
                 &b.mask,
                 &d.mask,
-                tp.ln_rows.get(n_paths).unwrap_or_else(|| row(ln, xa[0])),
-                row(mss, mixing_sq_sum),
-                row(h0, h[0]),
-                row(h1, h[1]),
-                row(g2, gap2),
-                row_at(lt1, local[1]),
-                row_at(ls1, local[0]),
-                row_at(pt, pair[1]),
-                row_at(ps, pair[0]),
+                row(&counts, 0),
+                row(&counts, 1),
+                row(&counts, 2),
+                row(&counts, 3),
+                row(&counts, 4),
+                row(&counts, 5),
+                row(&counts, 6),
+                row(&counts, 7),
+                row(&counts, 8),
             ];
-            let mask: Mask = std::array::from_fn(|w| rows.iter().fold(0, |acc, r| acc | r[w]));
-            y += m.leaf_sum(&mask);
+            let late = m.partial_sum(&late_rows, tp.late_word, tp.words);
+            y += m.value_of(early.wrapping_add(late));
         }
         Some((y + parts.shift, b.unseen))
     }
@@ -319,7 +519,7 @@ impl<'a> Screener<'a> {
 
 impl Cache {
     /// Point `current` at the records of `t`'s arms, making those not yet recorded for this
-    /// run of its core.
+    /// run of its core, and fold the records from the first arm that changed.
     #[inline]
     fn sync(&mut self, t: &Tuple, cards: &CardSet, model: &BoundModel, parts: &Parts) {
         let key = (t.core, features::core_is_donor(cards, t));
@@ -328,22 +528,34 @@ impl Cache {
             self.generation += 1;
             self.records.clear();
             self.current.clear();
+            // Keys name records of this run.
+            self.memo.clear();
             let card = &cards.cards[t.core];
             let counts = local_counts(parts.trees.as_ref(), card.s1_ev, card.t1_ev);
             self.core = (card.s1_ev, card.t1_ev, counts);
+            self.folds.clear();
+            self.folds.push(Fold::start(self.core));
         }
         let arms = t.arms.as_slice();
         self.current.truncate(arms.len());
+        let mut first = arms.len();
         for (site, &arm) in arms.iter().enumerate() {
             if self.current.get(site).is_some_and(|c| c.0 == arm) {
                 continue;
             }
+            first = first.min(site);
             let i = self.record_of(key, site, arm, cards, model, parts);
             if site < self.current.len() {
                 self.current[site] = (arm, i);
             } else {
                 self.current.push((arm, i));
             }
+        }
+        // folds[k] folds the first k arms: those from the first changed arm are refolded.
+        self.folds.truncate(first + 1);
+        for &(_, i) in &self.current[first..] {
+            let next = self.folds[self.folds.len() - 1].with(&self.records[i as usize], i);
+            self.folds.push(next);
         }
     }
 
@@ -433,19 +645,31 @@ impl<'a> Parts<'a> {
         let trees = match model.entry_masked_trees() {
             Some((masks, entries)) => {
                 let slots = AGG.map(|f| masks.slot(f));
-                let ln_rows = match slots[0] {
+                let counters = slots.map(|k| k.map(|k| masks.counter(k)));
+                let ln_counts = match slots[AT_LN] {
                     Some(k) => (0..=8)
-                        .map(|n| *masks.row(k, features::ln_paths(n)))
+                        .map(|n| masks.count(k, features::ln_paths(n)))
                         .collect(),
                     None => Vec::new(),
                 };
+                let (words, late_word) = (masks.words(), masks.late_word());
+                let late_asks = slots.map(|k| {
+                    k.is_some_and(|k| {
+                        (0..=masks.n_thresholds(k))
+                            .any(|c| masks.row_at(k, c)[late_word..words].iter().any(|&w| w != 0))
+                    })
+                });
                 Some(TreeParts {
                     masks,
                     entries,
                     path_slots: PATH_FEATURES.map(|f| masks.slot(f)),
                     slots,
-                    ln_rows,
-                    zero: [0; super::trees::MASK_WORDS],
+                    counters,
+                    first_row: slots.map(|k| masks.first_row(k)),
+                    ln_counts,
+                    words,
+                    late_word,
+                    late_asks,
                 })
             }
             None if model.forest().n_trees() == 0 && model.forest().tables().is_empty() => None,

@@ -401,6 +401,10 @@ pub(crate) struct SplitMasks {
     pairs: Vec<[i32; 256]>,
     unit: f64,
     n_trees: usize,
+    /// The first mask word of the trees asking about a late descriptor ([`Forest::new`]):
+    /// the words before it hold only the other trees, so the late descriptors' rows are zero
+    /// there. The number of words in use when no tree is late (or the order did not fit).
+    late_word: usize,
 }
 
 /// Most trees a mask holds; more are split into several masks.
@@ -418,7 +422,7 @@ pub(crate) type Mask = [u64; MASK_WORDS];
 /// is doubled until two steps suffice or it has [`MAX_CELLS`] (both choices of this tool). Exactly the count of `t < v` for every value,
 /// NaN (0) and ±∞ included.
 #[derive(Debug, Clone, PartialEq)]
-struct Counter {
+pub(crate) struct Counter {
     lo: f64,
     /// Cells per unit of the descriptor (0 for a single threshold: one cell).
     scale: f64,
@@ -484,7 +488,7 @@ impl Counter {
 
     /// The count of thresholds below `v`.
     #[inline(always)]
-    fn below(&self, v: f64) -> usize {
+    pub(crate) fn below(&self, v: f64) -> usize {
         // `as` saturates: below the grid (and NaN) cell 0, above it the last cell. A scale of
         // 0 makes every value cell 0 (∞·0 is NaN, which also goes to 0).
         let c = (((v - self.lo) * self.scale) as usize).min(self.start.len() - 1);
@@ -504,9 +508,39 @@ pub(crate) fn or_into(mask: &mut Mask, row: &Mask) {
     }
 }
 
+/// Trees a mask word holds.
+const WORD_TREES: usize = 64 / DEPTH;
+
 impl SplitMasks {
-    fn new(trees: &[Tree]) -> SplitMasks {
+    /// The trees asking about any descriptor of `late` go after the others, from a fresh mask
+    /// word (the rest of the last word of the others holds empty trees: no splits, zero
+    /// leaves), when that still fits one mask; otherwise the trees stay in their order.
+    fn new(trees: &[Tree], late: &[usize]) -> SplitMasks {
         assert!(trees.len() <= MASK_TREES);
+        let n_trees = trees.len();
+        let is_late = |t: &Tree| {
+            t.features
+                .iter()
+                .zip(&t.thresholds)
+                .any(|(f, th)| th.is_finite() && late.contains(f))
+        };
+        let (late_trees, early): (Vec<&Tree>, Vec<&Tree>) = trees.iter().partition(|t| is_late(t));
+        let late_word = early.len().div_ceil(WORD_TREES);
+        let empty = Tree {
+            features: [0; DEPTH],
+            thresholds: [f64::INFINITY; DEPTH],
+            leaves: [0.0; LEAVES],
+        };
+        let (ordered, late_word): (Vec<Tree>, usize) =
+            if late_word * WORD_TREES + late_trees.len() <= MASK_TREES {
+                let mut v: Vec<Tree> = early.into_iter().cloned().collect();
+                v.resize(late_word * WORD_TREES, empty);
+                v.extend(late_trees.into_iter().cloned());
+                (v, late_word)
+            } else {
+                (trees.to_vec(), trees.len().div_ceil(WORD_TREES))
+            };
+        let trees = ordered.as_slice();
         let grid = Grid::new(trees);
         let mut features = Vec::with_capacity(grid.features.len());
         let mut rows = Vec::new();
@@ -526,6 +560,8 @@ impl SplitMasks {
             }
             features.push((f, Counter::new(v), first_row));
         }
+        // The row of a descriptor no tree asks about ([`Self::first_row`]).
+        rows.push([0; MASK_WORDS]);
         let leaf = |t: usize, idx: usize| trees.get(t).map_or(0.0, |t| t.leaves[idx]);
         // Whole words of tables (a missing tree's leaves are zero), so the sum below runs
         // eight fixed look-ups a word.
@@ -556,7 +592,8 @@ impl SplitMasks {
             rows,
             pairs,
             unit,
-            n_trees: trees.len(),
+            n_trees,
+            late_word,
         }
     }
 
@@ -576,6 +613,28 @@ impl SplitMasks {
     #[inline(always)]
     pub(crate) fn count(&self, k: usize, v: f64) -> usize {
         self.features[k].1.below(v)
+    }
+
+    /// Every row, slot by slot ([`Self::first_row`]).
+    #[inline(always)]
+    pub(crate) fn rows(&self) -> &[Mask] {
+        &self.rows
+    }
+
+    /// The index in [`Self::rows`] of slot `k`'s row for a count of 0, the row for count c
+    /// c places on; for None (a descriptor no tree asks about), a row of no splits.
+    pub(crate) fn first_row(&self, k: Option<usize>) -> usize {
+        k.map_or(self.rows.len() - 1, |k| self.features[k].2)
+    }
+
+    /// The number of slot `k`'s thresholds (the largest count).
+    pub(crate) fn n_thresholds(&self, k: usize) -> usize {
+        self.features[k].1.thresholds.len() - 1
+    }
+
+    /// Slot `k`'s threshold counter.
+    pub(crate) fn counter(&self, k: usize) -> &Counter {
+        &self.features[k].1
     }
 
     /// The row of slot `k` for a count of thresholds below ([`Self::count`]).
@@ -626,32 +685,66 @@ impl SplitMasks {
         self.leaf_sum(&mask)
     }
 
-    /// Σ of the trees' leaves for a mask: one table look-up per byte, into two integer partial
-    /// sums (independent chains the CPU overlaps).
+    /// Σ of the trees' leaves for a mask ([`Self::partial_sum`] over every word).
     #[inline(always)]
     pub(crate) fn leaf_sum(&self, mask: &Mask) -> f64 {
-        // The mask as bytes in memory once (a byte load each, no shifts per byte).
-        let mut bytes = [0u8; MASK_WORDS * 8];
-        for (b, w) in bytes.chunks_exact_mut(8).zip(mask) {
-            b.copy_from_slice(&w.to_le_bytes());
-        }
+        self.value_of(self.partial_sum(&[mask], 0, self.words()))
+    }
+
+    /// Mask words in use (every tree's bits lie in them).
+    #[inline(always)]
+    pub(crate) fn words(&self) -> usize {
+        self.pairs.len() / 8
+    }
+
+    /// The first word of the late trees ([`Forest::new`]); the words before it hold only the
+    /// other trees.
+    pub(crate) fn late_word(&self) -> usize {
+        self.late_word
+    }
+
+    /// The leaves of the trees in mask words `from..to` summed, in integer units
+    /// ([`Self::value_of`]), for the mask that is `rows` OR-ed: each word OR-ed in one pass
+    /// over the rows (it stays in a register), then one table look-up per byte into two
+    /// integer partial sums (independent chains the CPU overlaps). Sums over disjoint word
+    /// ranges add up (wrapping, in integers) to the sum over their union exactly.
+    #[inline(always)]
+    pub(crate) fn partial_sum<const N: usize>(
+        &self,
+        rows: &[&Mask; N],
+        from: usize,
+        to: usize,
+    ) -> i32 {
         let mut acc = [0i32; 2];
-        for (b, tables) in bytes.chunks_exact(8).zip(self.pairs.chunks_exact(8)) {
-            for k in 0..8 {
+        let to = to.min(self.words()).min(MASK_WORDS);
+        for w in from..to {
+            let word = rows.iter().fold(0, |acc, r| acc | r[w]);
+            let tables: &[[i32; 256]; 8] = self.pairs[8 * w..8 * w + 8]
+                .try_into()
+                .expect("eight tables a word");
+            for (k, (t, b)) in tables.iter().zip(word.to_le_bytes()).enumerate() {
                 // No overflow: |Σ| ≤ i32::MAX / 2 by the choice of unit (plus half a unit of
                 // rounding per byte).
-                acc[k & 1] = acc[k & 1].wrapping_add(tables[k][usize::from(b[k])]);
+                acc[k & 1] = acc[k & 1].wrapping_add(t[usize::from(b)]);
             }
         }
-        f64::from(acc[0].wrapping_add(acc[1])) * self.unit
+        acc[0].wrapping_add(acc[1])
+    }
+
+    /// A sum of leaves in integer units ([`Self::partial_sum`]) as a value.
+    #[inline(always)]
+    pub(crate) fn value_of(&self, sum: i32) -> f64 {
+        f64::from(sum) * self.unit
     }
 }
 
 impl Forest {
     /// Each tree goes to the first of `groups` holding all its descriptors; each group's trees
     /// are tabulated when they fit a table ([`Table::compile`]). Trees of no group, and groups
-    /// too large to tabulate, are kept as trees. The value is the same sum either way.
-    pub fn new(trees: &[Tree], groups: &[Vec<usize>]) -> Forest {
+    /// too large to tabulate, are kept as trees, those asking about a descriptor of `late`
+    /// after the others in their mask (from a fresh mask word: [`SplitMasks::late_word`]).
+    /// The value is the same sum either way (up to the rounding of the integer leaf units).
+    pub fn new(trees: &[Tree], groups: &[Vec<usize>], late: &[usize]) -> Forest {
         let mut parts: Vec<Vec<Tree>> = vec![Vec::new(); groups.len()];
         let mut rest = Vec::new();
         for t in trees {
@@ -675,7 +768,10 @@ impl Forest {
         }
         Forest {
             tables,
-            masks: rest.chunks(MASK_TREES).map(SplitMasks::new).collect(),
+            masks: rest
+                .chunks(MASK_TREES)
+                .map(|c| SplitMasks::new(c, late))
+                .collect(),
         }
     }
 
@@ -745,7 +841,7 @@ mod tests {
             thresholds: [0.5, 0.25, 0.75, f64::INFINITY],
             leaves: std::array::from_fn(|k| k as f64 * 0.01),
         });
-        let forest = Forest::new(&trees, &groups);
+        let forest = Forest::new(&trees, &groups, &[]);
         assert_eq!(forest.tables().len(), 2);
         assert_eq!(forest.n_trees(), 1);
         let mut points: Vec<Vec<f64>> = (0..2000)
@@ -778,7 +874,7 @@ mod tests {
                 ..p
             },
         );
-        let f = Forest::new(&wide, &[vec![0, 1, 2, 3, 4]]);
+        let f = Forest::new(&wide, &[vec![0, 1, 2, 3, 4]], &[]);
         assert!(f.tables().is_empty() && f.n_trees() == wide.len());
         for x in &points {
             let (a, b) = (f.value(x), predict(&wide, x));
