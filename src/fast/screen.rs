@@ -560,9 +560,10 @@ impl Cache {
     }
 
     /// The index of the record of `arm` at `site` in this run of the core, made if new.
+    #[inline(always)]
     fn record_of(
         &mut self,
-        (core, core_is_donor): (usize, bool),
+        key: (usize, bool),
         site: usize,
         arm: Arm,
         cards: &CardSet,
@@ -576,6 +577,22 @@ impl Cache {
         }
         let i = self.records.len() as u32;
         *slot = generation | u64::from(i);
+        self.make(key, site, arm, cards, model, parts);
+        i
+    }
+
+    /// Records `arm` at `site` (once per run of the core: kept out of the hot path).
+    #[cold]
+    #[inline(never)]
+    fn make(
+        &mut self,
+        (core, core_is_donor): (usize, bool),
+        site: usize,
+        arm: Arm,
+        cards: &CardSet,
+        model: &BoundModel,
+        parts: &Parts,
+    ) {
         let r = features::arm_record(cards, core, core_is_donor, site, arm);
         self.records.push(Record {
             s1: r.s1,
@@ -587,14 +604,14 @@ impl Cache {
                 .map(|k| dimer_part(model, cards, parts.trees.as_ref(), Some(k), r.halves)),
         });
         self.made += 1;
-        i
     }
 }
 
 /// Where the record of `arm` at `site` is noted (`n` fragments), allocated on first use.
+#[inline(always)]
 fn slot_of(slots: &mut Vec<SiteSlots>, n: usize, site: usize, arm: Arm) -> &mut u64 {
     if slots.len() <= site {
-        slots.resize_with(site + 1, SiteSlots::default);
+        grow(slots, site);
     }
     let s = &mut slots[site];
     match arm {
@@ -610,16 +627,28 @@ fn slot_of(slots: &mut Vec<SiteSlots>, n: usize, site: usize, arm: Arm) -> &mut 
             core_site,
             terminal,
         } => {
-            if s.bridged.is_empty() {
-                s.bridged = vec![Vec::new(); 2 * n];
+            let k = 2 * bridge + usize::from(core_site);
+            if s.bridged.get(k).is_none_or(|r| r.is_empty()) {
+                allocate_bridged(s, n, k);
             }
-            let row = &mut s.bridged[2 * bridge + usize::from(core_site)];
-            if row.is_empty() {
-                *row = vec![0; n];
-            }
-            &mut row[terminal]
+            &mut s.bridged[k][terminal]
         }
     }
+}
+
+/// Slot tables for sites up to `site`.
+#[cold]
+fn grow(slots: &mut Vec<SiteSlots>, site: usize) {
+    slots.resize_with(site + 1, SiteSlots::default);
+}
+
+/// The slot row of bridge-and-side `k` at a site (and the site's rows, on its first bridge).
+#[cold]
+fn allocate_bridged(s: &mut SiteSlots, n: usize, k: usize) {
+    if s.bridged.is_empty() {
+        s.bridged = vec![Vec::new(); 2 * n];
+    }
+    s.bridged[k] = vec![0; n];
 }
 
 /// Counts of the trees' thresholds below a local S1 and T1.

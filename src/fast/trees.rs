@@ -882,6 +882,74 @@ mod tests {
         }
     }
 
+    /// Trees asking about a late descriptor go after the others, from a fresh mask word:
+    /// the late descriptor's rows have no bits before that word, the other trees' bits are
+    /// all before it, and the forest still sums its trees (at random points and at NaN).
+    #[test]
+    fn late_trees_go_last_in_the_mask() {
+        let mut rng = splitmix::Rng(20261204);
+        let mut next = move || rng.unit();
+        let rows: Vec<Vec<f64>> = (0..400).map(|_| (0..5).map(|_| next()).collect()).collect();
+        let y: Vec<f64> = rows
+            .iter()
+            .map(|r| (5.0 * r[0]).sin() + r[3] * r[4] + (r[1] - 0.5).abs())
+            .collect();
+        let refs: Vec<&[f64]> = rows.iter().map(|r| r.as_slice()).collect();
+        let p = BoostParams {
+            trees: 60,
+            learning_rate: 0.3,
+            l2: 1.0,
+            thresholds: 15,
+        };
+        let trees = boost(&refs, &y, &vec![0.0; 400], &[vec![0, 1, 2, 3, 4]], &p);
+        let late = |t: &Tree| {
+            t.features
+                .iter()
+                .zip(&t.thresholds)
+                .any(|(&f, th)| f == 3 && th.is_finite())
+        };
+        let n_late = trees.iter().filter(|t| late(t)).count();
+        assert!(n_late > 0 && n_late < trees.len(), "{n_late} late trees");
+        let forest = Forest::new(&trees, &[], &[3]);
+        let m = forest.single_masks().expect("one mask");
+        let lw = m.late_word();
+        assert_eq!(lw, (trees.len() - n_late).div_ceil(WORD_TREES));
+        assert_eq!(m.words(), lw + n_late.div_ceil(WORD_TREES));
+        for k in 0..m.features.len() {
+            let f = m.features[k].0;
+            for c in 0..=m.n_thresholds(k) {
+                let row = m.row_at(k, c);
+                if f == 3 {
+                    assert!(row[..lw].iter().all(|&w| w == 0), "descriptor 3, count {c}");
+                }
+                assert!(row[m.words()..].iter().all(|&w| w == 0));
+            }
+        }
+        // The early words hold the early trees' splits: some descriptor other than 3 sets
+        // bits there, and the partial sums add up to the whole.
+        assert!(
+            (0..m.features.len())
+                .any(|k| m.row_at(k, m.n_thresholds(k))[..lw].iter().any(|&w| w != 0))
+        );
+        let mut points: Vec<Vec<f64>> = (0..2000)
+            .map(|_| (0..5).map(|_| next() * 1.2 - 0.1).collect())
+            .collect();
+        points.push(vec![f64::NAN; 5]);
+        for x in &points {
+            let (a, b) = (forest.value(x), predict(&trees, x));
+            assert!((a - b).abs() < 1e-6, "{a} vs {b} at {x:?}");
+            let mut mask = [0u64; MASK_WORDS];
+            for (k, (f, _, _)) in m.features.iter().enumerate() {
+                or_into(&mut mask, m.row(k, x[*f]));
+            }
+            let (early, late) = (
+                m.partial_sum(&[&mask], 0, lw),
+                m.partial_sum(&[&mask], lw, m.words()),
+            );
+            assert_eq!(m.value_of(early.wrapping_add(late)), m.leaf_sum(&mask));
+        }
+    }
+
     /// The grid counter gives the count of thresholds below a value exactly (against a
     /// binary search of the sorted thresholds): at every threshold and the floats either side
     /// of it, at random values inside and outside the range, at NaN and ±∞; for spread,

@@ -517,6 +517,8 @@ fn the_fast_score_equals_the_full_prediction() {
         };
     // (bridged best arm, direct best arm, no dimer known) among the fitted classes
     let mut seen = [0usize; 3];
+    // Tuples that are not a single D–A dimer: scored with the trees.
+    let mut treed = 0usize;
     // (run of a core and side, site, arm)
     let mut triples = std::collections::HashSet::new();
     let (mut run, mut key) = (0usize, None);
@@ -545,6 +547,7 @@ fn the_fast_score_equals_the_full_prediction() {
                 "{t:?}"
             );
             same(screener.score(&t), streamed, &t);
+            treed += usize::from(fresh.is_some_and(|s| s.class != TupleClass::Dimer));
             same(
                 screener_ridge.score(&t),
                 ridge.score_stream(&mut ridge_stream, &t),
@@ -591,6 +594,12 @@ fn the_fast_score_equals_the_full_prediction() {
     });
     assert!(n > 1000);
     assert!(seen[0] > 100 && seen[1] > 100 && seen[2] > 0, "{seen:?}");
+    // Every tuple that reaches the trees either finds its early trees' sum or makes it, and
+    // both happen (the memo is exercised, not bypassed; this enumeration's short runs of a
+    // core find few).
+    let (hits, misses) = screener.memo_counts();
+    assert_eq!(hits + misses, treed as u64);
+    assert!(hits > 0 && misses > 0, "{hits} found, {misses} summed");
     // Records are made once per (site, arm) per run of a core and side: none made twice in a
     // run, none shared by two arms.
     assert_eq!(screener.records_made(), triples.len() as u64, "{n} tuples");
