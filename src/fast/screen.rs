@@ -81,11 +81,57 @@ struct Record {
     dimer: Option<DimerPart>,
 }
 
+/// What the fold ([`Fold::with`]) reads of a record, in one compact copy: a tuple folds the
+/// records of its changed arms, and their full parts (with two mask rows each) would spread
+/// those few values over several cache lines.
+#[derive(Clone, Copy)]
+struct Brief {
+    s1: f64,
+    t1: f64,
+    counts: [u16; 2],
+    /// Whether the arm has a path, and whether it has a dimer (then it has a path).
+    path: bool,
+    dimer: bool,
+    /// The path's gap and mixing.
+    gap: f64,
+    mixing: f64,
+    /// The dimer's S1, T1, counts and merit.
+    dimer_s1: f64,
+    dimer_t1: f64,
+    dimer_counts: [u16; 2],
+    merit: f64,
+}
+
+impl Brief {
+    fn of(r: &Record) -> Brief {
+        let (gap, mixing) = r
+            .path
+            .as_ref()
+            .map_or((f64::NAN, 0.0), |p| (p.gap, p.mixing));
+        let (dimer_s1, dimer_t1, dimer_counts, merit) =
+            r.dimer.as_ref().map_or((f64::NAN, 0.0, [0; 2], 0.0), |d| {
+                (d.s1, d.t1, d.counts, d.merit)
+            });
+        Brief {
+            s1: r.s1,
+            t1: r.t1,
+            counts: r.counts,
+            path: r.path.is_some(),
+            dimer: r.path.is_some() && r.dimer.is_some(),
+            gap,
+            mixing,
+            dimer_s1,
+            dimer_t1,
+            dimer_counts,
+            merit,
+        }
+    }
+}
+
 /// An arm as its tuple's best donor–acceptor path.
 struct PathPart {
     gap: f64,
     mixing: f64,
-    mixing_sq: f64,
     bridged: bool,
     /// The linear part's share of the path descriptors (with the constant), the fragment
     /// terms and the bridge slope on the path's coupling.
@@ -165,7 +211,7 @@ impl Fold {
 
     /// This fold with record `r` (index `i`) of the next arm.
     #[inline(always)]
-    fn with(mut self, r: &Record, i: u32) -> Fold {
+    fn with(mut self, r: &Brief, i: u32) -> Fold {
         if r.s1 < self.s1 {
             self.s1 = r.s1;
         }
@@ -176,24 +222,27 @@ impl Fold {
             self.local[0].min(r.counts[0]),
             self.local[1].min(r.counts[1]),
         ];
-        let Some(p) = &r.path else {
+        if !r.path {
             return self;
-        };
-        if let Some(d) = &r.dimer {
-            features::push_lowest(d.s1, &mut self.ps1, &mut self.second);
-            self.pt1 = self.pt1.min(d.t1);
-            self.pair = [self.pair[0].min(d.counts[0]), self.pair[1].min(d.counts[1])];
+        }
+        if r.dimer {
+            features::push_lowest(r.dimer_s1, &mut self.ps1, &mut self.second);
+            self.pt1 = self.pt1.min(r.dimer_t1);
+            self.pair = [
+                self.pair[0].min(r.dimer_counts[0]),
+                self.pair[1].min(r.dimer_counts[1]),
+            ];
             // The first dimer, then strictly better ones.
-            if self.dimer == u32::MAX || d.merit > self.dimer_merit {
-                (self.dimer, self.dimer_merit) = (i, d.merit);
+            if self.dimer == u32::MAX || r.merit > self.dimer_merit {
+                (self.dimer, self.dimer_merit) = (i, r.merit);
             }
         }
         self.n_paths += 1;
-        self.mixing_sq_sum += p.mixing_sq;
+        self.mixing_sq_sum += r.mixing * r.mixing;
         if self.best == u32::MAX
-            || features::better_path(p.gap, p.mixing, self.best_gap, self.best_mixing)
+            || features::better_path(r.gap, r.mixing, self.best_gap, self.best_mixing)
         {
-            (self.best, self.best_gap, self.best_mixing) = (i, p.gap, p.mixing);
+            (self.best, self.best_gap, self.best_mixing) = (i, r.gap, r.mixing);
         }
         self
     }
@@ -316,6 +365,8 @@ struct Cache {
     generation: u32,
     slots: Vec<SiteSlots>,
     records: Vec<Record>,
+    /// Each record's [`Brief`], by the same index.
+    briefs: Vec<Brief>,
     /// The records of the current tuple's arms, with the arms (a Vec: its length and
     /// indexing cost less than an inline vector's, and it grows once).
     current: Vec<(Arm, u32)>,
@@ -344,6 +395,7 @@ impl<'a> Screener<'a> {
                 generation: 0,
                 slots: Vec::new(),
                 records: Vec::new(),
+                briefs: Vec::new(),
                 current: Vec::new(),
                 folds: Vec::new(),
                 core: (f64::INFINITY, f64::INFINITY, [0; 2]),
@@ -527,6 +579,7 @@ impl Cache {
             self.key = Some(key);
             self.generation += 1;
             self.records.clear();
+            self.briefs.clear();
             self.current.clear();
             // Keys name records of this run.
             self.memo.clear();
@@ -554,7 +607,7 @@ impl Cache {
         // folds[k] folds the first k arms: those from the first changed arm are refolded.
         self.folds.truncate(first + 1);
         for &(_, i) in &self.current[first..] {
-            let next = self.folds[self.folds.len() - 1].with(&self.records[i as usize], i);
+            let next = self.folds[self.folds.len() - 1].with(&self.briefs[i as usize], i);
             self.folds.push(next);
         }
     }
@@ -603,6 +656,8 @@ impl Cache {
                 .dimer
                 .map(|k| dimer_part(model, cards, parts.trees.as_ref(), Some(k), r.halves)),
         });
+        self.briefs
+            .push(Brief::of(&self.records[self.records.len() - 1]));
         self.made += 1;
     }
 }
@@ -768,7 +823,6 @@ fn path_part(model: &BoundModel, trees: Option<&TreeParts>, p: &Path) -> PathPar
     PathPart {
         gap: p.gap,
         mixing: p.mixing,
-        mixing_sq: p.mixing * p.mixing,
         bridged: p.bridge.is_some(),
         linear,
         dimer_slopes,
