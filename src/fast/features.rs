@@ -123,7 +123,7 @@ pub fn half_descriptors(cards: &CardSet, k: u32) -> [f64; 3] {
     [e.v.s1_ev, e.log10_delta_est, e.log10_f]
 }
 
-/// The descriptors of the best donor–acceptor path alone ([`path_descriptors`]; the constant
+/// The descriptors of the best donor–acceptor path alone (`path_descriptors`; the constant
 /// rides with them).
 pub const PATH_FEATURES: [usize; 8] = [0, 1, 2, 3, 4, 5, 10, 11];
 // The descriptors aggregated over a tuple's arms (indices into the descriptor vector).

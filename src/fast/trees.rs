@@ -705,8 +705,8 @@ impl SplitMasks {
 
     /// The leaves of the trees in mask words `from..to` summed, in integer units
     /// ([`Self::value_of`]), for the mask that is `rows` OR-ed: each word OR-ed in one pass
-    /// over the rows (it stays in a register), then one table look-up per byte into two
-    /// integer partial sums (independent chains the CPU overlaps). Sums over disjoint word
+    /// over the rows (it stays in a register) and stored as bytes, then one table look-up
+    /// per byte into two integer partial sums (independent chains the CPU overlaps). Sums over disjoint word
     /// ranges add up (wrapping, in integers) to the sum over their union exactly.
     #[inline(always)]
     pub(crate) fn partial_sum<const N: usize>(
@@ -715,18 +715,21 @@ impl SplitMasks {
         from: usize,
         to: usize,
     ) -> i32 {
-        let mut acc = [0i32; 2];
         let to = to.min(self.words()).min(MASK_WORDS);
+        let from = from.min(to);
+        // The OR-ed words stored as bytes first: a byte load each, where reading the bytes
+        // out of a register costs a shift each.
+        let mut bytes = [0u8; MASK_WORDS * 8];
         for w in from..to {
             let word = rows.iter().fold(0, |acc, r| acc | r[w]);
-            let tables: &[[i32; 256]; 8] = self.pairs[8 * w..8 * w + 8]
-                .try_into()
-                .expect("eight tables a word");
-            for (k, (t, b)) in tables.iter().zip(word.to_le_bytes()).enumerate() {
-                // No overflow: |Σ| ≤ i32::MAX / 2 by the choice of unit (plus half a unit of
-                // rounding per byte).
-                acc[k & 1] = acc[k & 1].wrapping_add(t[usize::from(b)]);
-            }
+            bytes[8 * w..8 * w + 8].copy_from_slice(&word.to_le_bytes());
+        }
+        let mut acc = [0i32; 2];
+        let tables = &self.pairs[8 * from..8 * to];
+        for (k, (&b, t)) in bytes[8 * from..8 * to].iter().zip(tables).enumerate() {
+            // No overflow: |Σ| ≤ i32::MAX / 2 by the choice of unit (plus half a unit of
+            // rounding per byte).
+            acc[k & 1] = acc[k & 1].wrapping_add(t[usize::from(b)]);
         }
         acc[0].wrapping_add(acc[1])
     }
@@ -742,7 +745,7 @@ impl Forest {
     /// Each tree goes to the first of `groups` holding all its descriptors; each group's trees
     /// are tabulated when they fit a table ([`Table::compile`]). Trees of no group, and groups
     /// too large to tabulate, are kept as trees, those asking about a descriptor of `late`
-    /// after the others in their mask (from a fresh mask word: [`SplitMasks::late_word`]).
+    /// after the others in their mask (from a fresh mask word: `SplitMasks::late_word`).
     /// The value is the same sum either way (up to the rounding of the integer leaf units).
     pub fn new(trees: &[Tree], groups: &[Vec<usize>], late: &[usize]) -> Forest {
         let mut parts: Vec<Vec<Tree>> = vec![Vec::new(); groups.len()];
