@@ -814,19 +814,28 @@ mod splitmix;
 mod tests {
     use super::*;
 
+    /// 400 rows of five seeded uniform descriptors, their targets by `f`, and the generator
+    /// to draw more from.
+    fn seeded(
+        seed: u64,
+        f: impl Fn(&[f64]) -> f64,
+    ) -> (Vec<Vec<f64>>, Vec<f64>, impl FnMut() -> f64) {
+        let mut rng = splitmix::Rng(seed);
+        let mut next = move || rng.unit();
+        let rows: Vec<Vec<f64>> = (0..400).map(|_| (0..5).map(|_| next()).collect()).collect();
+        let y = rows.iter().map(|r| f(r)).collect();
+        (rows, y, next)
+    }
+
     /// A forest tabulated per group gives the trees' own sum everywhere: at random points,
     /// exactly at every threshold (x > t is false there, for the table as for the tree), off
     /// the grid on either side, and at NaN (every comparison false). The forest is boosted on
     /// seeded random data with two groups of two descriptors, plus a tree outside both groups.
     #[test]
     fn a_tabulated_forest_is_its_trees() {
-        let mut rng = splitmix::Rng(20261202);
-        let mut next = move || rng.unit();
-        let rows: Vec<Vec<f64>> = (0..400).map(|_| (0..5).map(|_| next()).collect()).collect();
-        let y: Vec<f64> = rows
-            .iter()
-            .map(|r| (6.0 * r[1]).sin() * r[2] + (r[3] - 0.5).abs() * r[4])
-            .collect();
+        let (rows, y, mut next) = seeded(20261202, |r| {
+            (6.0 * r[1]).sin() * r[2] + (r[3] - 0.5).abs() * r[4]
+        });
         let refs: Vec<&[f64]> = rows.iter().map(|r| r.as_slice()).collect();
         let p = BoostParams {
             trees: 40,
@@ -890,13 +899,9 @@ mod tests {
     /// all before it, and the forest still sums its trees (at random points and at NaN).
     #[test]
     fn late_trees_go_last_in_the_mask() {
-        let mut rng = splitmix::Rng(20261204);
-        let mut next = move || rng.unit();
-        let rows: Vec<Vec<f64>> = (0..400).map(|_| (0..5).map(|_| next()).collect()).collect();
-        let y: Vec<f64> = rows
-            .iter()
-            .map(|r| (5.0 * r[0]).sin() + r[3] * r[4] + (r[1] - 0.5).abs())
-            .collect();
+        let (rows, y, mut next) = seeded(20261204, |r| {
+            (5.0 * r[0]).sin() + r[3] * r[4] + (r[1] - 0.5).abs()
+        });
         let refs: Vec<&[f64]> = rows.iter().map(|r| r.as_slice()).collect();
         let p = BoostParams {
             trees: 60,
