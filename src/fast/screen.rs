@@ -77,13 +77,9 @@ const AGG_IN_PRODUCTS: [usize; 3] = [AT_PAIR_S1, AT_PAIR_T1, AT_GAP2];
 /// Index of the screen score among the model's targets.
 const SCREEN: usize = 3;
 
-/// What one (core, site, arm) contributes: computed once per run of its core.
+/// What one (core, site, arm) contributes to the score as the best path or the best dimer:
+/// computed once per run of its core (what the fold reads is its [`Brief`]).
 struct Record {
-    /// Lowest local S1 and T1 of the arm's fragments, and their counts of the trees'
-    /// thresholds below ([`LOCAL_S1_MIN`], [`LOCAL_T1_MIN`]).
-    s1: f64,
-    t1: f64,
-    counts: [u16; 2],
     path: Option<PathPart>,
     /// Some only with a path (an arm's dimer is that of its path).
     dimer: Option<DimerPart>,
@@ -94,10 +90,13 @@ struct Record {
 /// those few values over several cache lines.
 #[derive(Clone, Copy)]
 struct Brief {
+    /// Lowest local S1 and T1 of the arm's fragments, and their counts of the trees'
+    /// thresholds below ([`LOCAL_S1_MIN`], [`LOCAL_T1_MIN`]).
     s1: f64,
     t1: f64,
     counts: [u16; 2],
-    /// Whether the arm has a path, and whether it has a dimer (then it has a path).
+    /// Whether the arm has a path, and whether it has a dimer (then it has a path); the
+    /// values below are 0 for what it lacks.
     path: bool,
     dimer: bool,
     /// The path's gap and mixing.
@@ -110,36 +109,10 @@ struct Brief {
     merit: f64,
 }
 
-impl Brief {
-    fn of(r: &Record) -> Brief {
-        let (gap, mixing) = r
-            .path
-            .as_ref()
-            .map_or((f64::NAN, 0.0), |p| (p.gap, p.mixing));
-        let (dimer_s1, dimer_t1, dimer_counts, merit) =
-            r.dimer.as_ref().map_or((f64::NAN, 0.0, [0; 2], 0.0), |d| {
-                (d.s1, d.t1, d.counts, d.merit)
-            });
-        Brief {
-            s1: r.s1,
-            t1: r.t1,
-            counts: r.counts,
-            path: r.path.is_some(),
-            dimer: r.path.is_some() && r.dimer.is_some(),
-            gap,
-            mixing,
-            dimer_s1,
-            dimer_t1,
-            dimer_counts,
-            merit,
-        }
-    }
-}
-
 /// An arm as its tuple's best donor–acceptor path.
 struct PathPart {
+    /// The path's gap (for the hinges).
     gap: f64,
-    mixing: f64,
     bridged: bool,
     /// The linear part's share of the path descriptors (with the constant), the fragment
     /// terms and the bridge slope on the path's coupling.
@@ -273,8 +246,6 @@ struct TreeParts<'a> {
     entries: &'a EntryMasks,
     /// Slots of [`PATH_FEATURES`].
     path_slots: [Option<usize>; 8],
-    /// Slots of [`AGG`]'s descriptors (None: no tree asks about it).
-    slots: [Option<usize>; 9],
     /// Per [`AGG`] descriptor: its threshold counter (None: no tree asks about it), and the
     /// index of its row for a count of 0 in the masks' rows (the row for count c is c
     /// places on; a descriptor no tree asks about has a row of no splits, count 0).
@@ -536,8 +507,11 @@ impl<'a> Screener<'a> {
                 None => {
                     *memo_misses += 1;
                     let mut counts = counts;
-                    counts[AT_H0] = count(AT_H0);
-                    counts[AT_H1] = count(AT_H1);
+                    for a in [AT_H0, AT_H1] {
+                        if !tp.late_asks[a] {
+                            counts[a] = count(a);
+                        }
+                    }
                     let early_rows = [
                         &b.mask,
                         &d.mask,
@@ -657,17 +631,31 @@ impl Cache {
         parts: &Parts,
     ) {
         let r = features::arm_record(cards, core, core_is_donor, site, arm);
-        self.records.push(Record {
-            s1: r.s1,
-            t1: r.t1,
-            counts: local_counts(parts.trees.as_ref(), r.s1, r.t1),
-            path: r.path.map(|p| path_part(model, parts.trees.as_ref(), &p)),
+        let trees = parts.trees.as_ref();
+        let record = Record {
+            path: r.path.map(|p| path_part(model, trees, &p)),
             dimer: r
                 .dimer
-                .map(|k| dimer_part(model, cards, parts.trees.as_ref(), Some(k), r.halves)),
+                .map(|k| dimer_part(model, cards, trees, Some(k), r.halves)),
+        };
+        let (gap, mixing) = r.path.map_or((0.0, 0.0), |p| (p.gap, p.mixing));
+        let dimer = record.dimer.as_ref().filter(|_| r.path.is_some());
+        let (dimer_s1, dimer_t1, dimer_counts, merit) =
+            dimer.map_or((0.0, 0.0, [0; 2], 0.0), |d| (d.s1, d.t1, d.counts, d.merit));
+        self.briefs.push(Brief {
+            s1: r.s1,
+            t1: r.t1,
+            counts: local_counts(trees, r.s1, r.t1),
+            path: r.path.is_some(),
+            dimer: dimer.is_some(),
+            gap,
+            mixing,
+            dimer_s1,
+            dimer_t1,
+            dimer_counts,
+            merit,
         });
-        self.briefs
-            .push(Brief::of(&self.records[self.records.len() - 1]));
+        self.records.push(record);
         self.made += 1;
     }
 }
@@ -726,7 +714,7 @@ fn local_counts(trees: Option<&TreeParts>, s1: f64, t1: f64) -> [u16; 2] {
 /// Counts below `values` of the [`AGG`] descriptors at the given positions (0 for a
 /// descriptor no tree asks about).
 fn counts(tp: &TreeParts, values: [(usize, f64); 2]) -> [u16; 2] {
-    values.map(|(a, v)| tp.slots[a].map_or(0, |k| tp.masks.count(k, v) as u16))
+    values.map(|(a, v)| tp.counters[a].map_or(0, |c| c.below(v) as u16))
 }
 
 impl<'a> Parts<'a> {
@@ -757,7 +745,6 @@ impl<'a> Parts<'a> {
                     masks,
                     entries,
                     path_slots: PATH_FEATURES.map(|f| masks.slot(f)),
-                    slots,
                     counters,
                     first_row: slots.map(|k| masks.first_row(k)),
                     ln_counts,
@@ -832,7 +819,6 @@ fn path_part(model: &BoundModel, trees: Option<&TreeParts>, p: &Path) -> PathPar
     }
     PathPart {
         gap: p.gap,
-        mixing: p.mixing,
         bridged: p.bridge.is_some(),
         linear,
         dimer_slopes,
