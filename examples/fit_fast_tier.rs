@@ -28,6 +28,11 @@ const CV_FOLDS: usize = 5;
 const CV_TOP: f64 = 0.05;
 const CV_PASS: f64 = 0.10;
 
+/// Gates tried for the chosen settings: none (the trees refine every tuple), then quantiles
+/// of the fitting rows' ridge part, ascending (choices of this tool around the floor's 0.90:
+/// a screen passes about the top tenth).
+const GATES: [Option<f64>; 5] = [None, Some(0.75), Some(0.8), Some(0.85), Some(0.88)];
+
 /// Descriptor groups the trees may ask about, small enough to tabulate
 /// (`lumisift::fast::trees::Forest`): every group has `bridged` (10, the class); then the
 /// descriptors an unrestricted forest split on most, in fours: `pair_best_merit`,
@@ -95,6 +100,7 @@ fn settings(
             Groups::Fours(n) => FOURS[..n].iter().map(|g| g.to_vec()).collect(),
             Groups::Fives => FIVES.iter().map(|g| g.to_vec()).collect(),
         },
+        gate_quantile: None,
     }
 }
 
@@ -169,19 +175,71 @@ fn main() {
     for (g, r) in grid.iter().zip(&cv) {
         println!(
             "products {:5}, trees on {:?} ({} thresholds), {:>3} trees at {}: \
-             cross-validated retention {r:.3}",
-            g.products, g.tree_groups, g.boost.thresholds, g.boost.trees, g.boost.learning_rate
+             cross-validated retention {:.3} ± {:.3}",
+            g.products,
+            g.tree_groups,
+            g.boost.thresholds,
+            g.boost.trees,
+            g.boost.learning_rate,
+            r.mean,
+            r.standard_error
         );
     }
     // Best retention; ties go to the earlier candidate (the simpler).
     let best = cv
         .iter()
         .enumerate()
-        .fold((0, f64::NEG_INFINITY), |best, (i, &r)| {
-            if r > best.1 + 1e-9 { (i, r) } else { best }
+        .fold((0, f64::NEG_INFINITY), |best, (i, r)| {
+            if r.mean > best.1 + 1e-9 {
+                (i, r.mean)
+            } else {
+                best
+            }
         })
         .0;
-    let sf = screen_fit(&fit, &grid[best], fasttier::N_HOST, fasttier::T_K);
+    // The gate: the chosen settings with the trees refining only tuples whose ridge part
+    // reaches a quantile of the fitting rows'. The one-standard-error rule (Hastie,
+    // Tibshirani & Friedman, The Elements of Statistical Learning, 2nd ed., §7.10): the
+    // cheapest candidate (the highest quantile) whose cross-validated retention is within one
+    // standard error of the best candidate's.
+    let mut chosen = grid[best].clone();
+    if chosen.boost.trees > 0 {
+        let gated: Vec<ScreenSettings> = GATES
+            .iter()
+            .map(|&q| ScreenSettings {
+                gate_quantile: q,
+                ..chosen.clone()
+            })
+            .collect();
+        let cv = cross_validate_screen(
+            &fit,
+            &ids,
+            set,
+            ALPHA,
+            &gated,
+            CV_FOLDS,
+            CV_TOP,
+            CV_PASS,
+            fasttier::N_HOST,
+            fasttier::T_K,
+        );
+        for (g, r) in gated.iter().zip(&cv) {
+            println!(
+                "trees refining from the ridge part's {:?} quantile: cross-validated retention {:.3} ± {:.3}",
+                g.gate_quantile, r.mean, r.standard_error
+            );
+        }
+        let top = cv
+            .iter()
+            .fold(cv[0], |b, r| if r.mean > b.mean + 1e-9 { *r } else { b });
+        if let Some(k) = (0..gated.len())
+            .rev()
+            .find(|&k| cv[k].mean >= top.mean - top.standard_error - 1e-9)
+        {
+            chosen = gated[k].clone();
+        }
+    }
+    let sf = screen_fit(&fit, &chosen, fasttier::N_HOST, fasttier::T_K);
     println!("screen: {:?}", sf);
     let mut model = fit_model(&fit, &ids, ALPHA, sf).expect("fit");
     let bound = model.bind(set, fasttier::N_HOST, fasttier::T_K);
@@ -194,6 +252,22 @@ fn main() {
     );
     let ev = evaluate(&test, &bound);
     println!("fit {} / test {}", fit.len(), test.len());
+    let (gate, _) = bound.gate();
+    let mut ridge_part = bound.clone();
+    ridge_part.drop_trees();
+    let refined = test
+        .iter()
+        .filter(|s| {
+            s.summary.class != lumisift::fast::TupleClass::Dimer
+                && ridge_part.score_descriptors(&s.x, &s.summary).0 >= gate
+        })
+        .count();
+    println!(
+        "gate {:?} (quantile {:?}): the trees refine {refined} of {} test tuples",
+        model.screen.gate,
+        model.screen.gate_quantile,
+        test.len()
+    );
     println!("{ev:#?}");
     let mut ridge_only = bound.clone();
     ridge_only.drop_trees();

@@ -52,6 +52,12 @@ fn main() {
         "early trees: summed for {misses} tuples, found for {hits} ({:.1} % found)",
         100.0 * hits as f64 / (hits + misses).max(1) as f64
     );
+    println!(
+        "trees summed for {} tuples ({:.1} %; the rest below the gate {:?})",
+        screener.refined().unwrap_or(0),
+        100.0 * screener.refined().unwrap_or(0) as f64 / scored.max(1) as f64,
+        bound.gate().0
+    );
     let mut ridge = bound.clone();
     ridge.drop_trees();
     for (name, model) in [("with the trees", &bound), ("without the trees", &ridge)] {

@@ -514,6 +514,21 @@ fn run(
                     sc.scoring_s,
                     (sc.scored + sc.no_path + sc.non_finite) as f64 / sc.scoring_s.max(1e-9)
                 );
+                let trees = wf.screen.as_ref().is_some_and(|c| c.trees);
+                match (trees, sc.refined, sc.gate_score) {
+                    (true, Some(r), Some(g)) => eprintln!(
+                        "screen: the boosted trees refined {r} scores (ridge part at or above the model's gate, screen score ≥ {g:.2}); {}",
+                        if sc.threshold_merit < g {
+                            "the pass reaches below the gate, where tuples are ordered by the ridge part alone ([screen] refine_all = true refines every tuple)"
+                        } else {
+                            "every passed tuple is above the gate"
+                        }
+                    ),
+                    (true, Some(r), None) => eprintln!(
+                        "screen: the boosted trees refined every score ({r}; no gate: refine_all, or a pass fraction above the share the model's gate refines)"
+                    ),
+                    _ => {}
+                }
             }
             let c = &s.counts;
             eprintln!(

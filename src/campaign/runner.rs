@@ -106,6 +106,13 @@ pub struct ScreenSummary {
     pub threshold_merit: f64,
     /// Passed tuples with a fragment the fast model was not fitted on.
     pub passed_unseen_fragment: u64,
+    /// Scored tuples whose score the boosted trees refined (their ridge part reached the
+    /// model's gate; the others rank below them by the ridge part). None when not counted
+    /// (a model scored through the descriptors).
+    pub refined: Option<u64>,
+    /// The screen score below which tuples were not refined (None: every tuple was). When
+    /// `threshold_merit` is below it, the pass reached tuples ordered by the ridge part alone.
+    pub gate_score: Option<f64>,
     /// Cards and donor–acceptor pair table (s), scoring pass (s).
     pub cards_s: f64,
     pub scoring_s: f64,
@@ -506,6 +513,11 @@ fn screen_select(
     if !sc.trees {
         bound.drop_trees();
     }
+    if sc.refine_all {
+        bound.refine_all();
+    } else {
+        bound.gate_for_pass(sc.pass_fraction);
+    }
     let cards_s = t0.elapsed().as_secs_f64();
     let t1 = Instant::now();
     let keep = ((admitted as f64 * sc.pass_fraction).ceil() as u64).max(1) as usize;
@@ -559,6 +571,8 @@ fn screen_select(
             passed,
             threshold_merit: threshold,
             passed_unseen_fragment: unseen,
+            refined: screener.refined(),
+            gate_score: bound.gate_score(),
             cards_s,
             scoring_s: t1.elapsed().as_secs_f64(),
         },

@@ -150,6 +150,9 @@ pub struct ScreenSettings {
     pub products: bool,
     pub boost: super::trees::BoostParams,
     pub tree_groups: Vec<Vec<usize>>,
+    /// The quantile of the fitting rows' ridge part from which the trees refine a tuple
+    /// ([`super::ScreenFit::gate`]; None: every tuple).
+    pub gate_quantile: Option<f64>,
 }
 
 /// The screen score's target settings for a fit: log10 k_TADF at `temperature_k` and
@@ -182,6 +185,9 @@ pub fn screen_fit(
         products: settings.products,
         boost: settings.boost,
         tree_groups: settings.tree_groups.clone(),
+        gate_quantile: settings.gate_quantile,
+        // Set by the fit from its ridge part.
+        gate: None,
     }
 }
 
@@ -189,7 +195,7 @@ pub fn screen_fit(
 /// `grid`, the mean over `folds` folds (sample index mod `folds`) of the
 /// fraction of each held-out fold's best `top_fraction` (by the π tier's log10 k_TADF) kept
 /// when passing `pass_fraction` of it by the score fitted on the other folds. Returns the mean
-/// retention per grid point.
+/// retention per grid point and its standard error over the folds.
 #[allow(clippy::too_many_arguments)]
 pub fn cross_validate_screen(
     samples: &[Sample],
@@ -202,11 +208,10 @@ pub fn cross_validate_screen(
     pass_fraction: f64,
     refractive_index: f64,
     temperature_k: f64,
-) -> Vec<f64> {
+) -> Vec<CvRetention> {
     grid.iter()
         .map(|settings| {
-            let mut sum = 0.0;
-            let mut n = 0;
+            let mut kept = Vec::with_capacity(folds);
             for k in 0..folds {
                 let in_fold = |i: &usize| i % folds == k;
                 let train: Vec<Sample> = (0..samples.len())
@@ -233,12 +238,36 @@ pub fn cross_validate_screen(
                 let len = test.len();
                 let top = ((len as f64 * top_fraction).round() as usize).max(1);
                 let passed = (len as f64 * pass_fraction).round() as usize;
-                sum += top_k_retention(&truth, &score, top, passed);
-                n += 1;
+                kept.push(top_k_retention(&truth, &score, top, passed));
             }
-            sum / n.max(1) as f64
+            CvRetention::of(&kept)
         })
         .collect()
+}
+
+/// A cross-validated retention: the mean over the folds and its standard error (the folds'
+/// sample standard deviation over √folds; 0 for fewer than two folds).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CvRetention {
+    pub mean: f64,
+    pub standard_error: f64,
+}
+
+impl CvRetention {
+    fn of(folds: &[f64]) -> CvRetention {
+        let n = folds.len() as f64;
+        let mean = folds.iter().sum::<f64>() / n.max(1.0);
+        let standard_error = if folds.len() < 2 {
+            0.0
+        } else {
+            let var = folds.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / (n - 1.0);
+            (var / n).sqrt()
+        };
+        CvRetention {
+            mean,
+            standard_error,
+        }
+    }
 }
 
 /// Fit the fast model by ridge regression with penalty `alpha` on standardised columns, one
@@ -351,6 +380,14 @@ pub fn fit_model(
         .iter()
         .map(|r| r.iter().zip(&wq).map(|(a, b)| a * b).sum())
         .collect();
+    // The gate: the ridge part's quantile over the fitting rows (the floor's rule).
+    let mut screen = screen;
+    screen.gate = screen.gate_quantile.and_then(|q| {
+        let mut v: Vec<f64> = init.iter().copied().filter(|v| v.is_finite()).collect();
+        v.sort_by(f64::total_cmp);
+        let k = ((v.len().checked_sub(1)?) as f64 * q.clamp(0.0, 1.0)).round() as usize;
+        Some(v[k])
+    });
     let xs: Vec<&[f64]> = samples.iter().map(|s| s.x.as_slice()).collect();
     let groups: Vec<Vec<usize>> = if screen.tree_groups.is_empty() {
         vec![(1..super::N_FEATURES).collect()]

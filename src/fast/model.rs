@@ -94,6 +94,13 @@ pub struct ScreenFit {
     /// of every descriptor). Groups of a few descriptors at few thresholds let the forest be
     /// tabulated, one table look-up per group ([`super::trees::Forest`]).
     pub tree_groups: Vec<Vec<usize>>,
+    /// The trees refine only tuples whose ridge part reaches `gate`, the ridge part's
+    /// `gate_quantile` quantile over the fitting rows (absent: every tuple). A screen passes
+    /// the upper tail, and the trees' work is spent where it can change what passes; below
+    /// the gate a tuple scores its ridge part plus the least the trees can add, so it ranks
+    /// below every refined tuple ([`BoundModel::score`]).
+    pub gate_quantile: Option<f64>,
+    pub gate: Option<f64>,
 }
 
 impl ScreenFit {
@@ -104,6 +111,7 @@ impl ScreenFit {
             products: self.products,
             boost: self.boost,
             tree_groups: self.tree_groups.clone(),
+            gate_quantile: self.gate_quantile,
         }
     }
 }
@@ -188,6 +196,15 @@ pub struct BoundModel {
     pub(super) screen_shift: Option<f64>,
     /// Whether the screen score has its products (`q` is zero otherwise).
     pub(super) products: bool,
+    /// The ridge part (before `screen_shift`) from which the trees refine a tuple
+    /// ([`ScreenFit::gate`]; −∞ without a gate or without trees), and what a tuple below it
+    /// takes instead of the trees' sum: the least the forest can give
+    /// ([`super::trees::Forest::lower_bound`]).
+    pub(super) gate: f64,
+    pub(super) tree_floor: f64,
+    /// The share of the fitting rows at or above the gate (1 − [`ScreenFit::gate_quantile`];
+    /// 1 without a gate).
+    gate_share: f64,
     forest: super::trees::Forest,
     /// The forest's mask rows of the pair-table descriptors per table entry (None when the
     /// forest is not in that form, or after [`Self::drop_entry_masks`]).
@@ -380,6 +397,12 @@ impl FastModel {
             screen_shift: ((temperature_k - self.screen.temperature_k).abs() < 0.01)
                 .then(|| merit_const(refractive_index) - merit_const(self.screen.refractive_index)),
             products: self.screen.products,
+            gate: match self.screen.gate {
+                Some(g) if !forest.is_empty() => g,
+                _ => f64::NEG_INFINITY,
+            },
+            tree_floor: forest.lower_bound(),
+            gate_share: 1.0 - self.screen.gate_quantile.unwrap_or(0.0),
             entry_masks: forest.single_masks().map(|m| EntryMasks::new(m, cards)),
             forest,
         }
@@ -405,12 +428,47 @@ fn dot<const N: usize>(w: &[f64; N], x: &[f64; N]) -> f64 {
 }
 
 impl BoundModel {
-    /// Order by the screen score's ridge part alone (no boosted trees): about two and a half
-    /// times faster per tuple through the screener, a coarser screen (DEVELOPERS.md: 90 %
-    /// instead of 97 % of the held-out top 100 kept at 10 % pass).
+    /// Order by the screen score's ridge part alone (no boosted trees): faster per tuple
+    /// through the screener, a coarser screen (DEVELOPERS.md: 90 % instead of 96 % of the
+    /// held-out top 100 kept at 10 % pass).
     pub fn drop_trees(&mut self) {
         self.forest = super::trees::Forest::default();
         self.entry_masks = None;
+        self.gate = f64::NEG_INFINITY;
+        self.tree_floor = 0.0;
+    }
+
+    /// The screen score that separates refined tuples from those below the gate: every
+    /// refined score is at least this, every other (D–A dimers aside, which score exactly)
+    /// below it. None without a gate, or when the score is the composed merit.
+    pub fn gate_score(&self) -> Option<f64> {
+        let shift = self.screen_shift?;
+        self.gate
+            .is_finite()
+            .then_some(self.gate + self.tree_floor + shift)
+    }
+
+    /// Keep the gate only for a screen that passes at most the share of the fitting rows the
+    /// trees refine (1 − the gate's quantile): a larger pass would reach tuples ordered by
+    /// the ridge part alone, so the trees then refine every tuple ([`Self::refine_all`]).
+    /// Returns whether the gate stays.
+    pub fn gate_for_pass(&mut self, pass_fraction: f64) -> bool {
+        if pass_fraction > self.gate_share {
+            self.refine_all();
+        }
+        self.gate.is_finite()
+    }
+
+    /// Let the trees refine every tuple's score (no gate): slower per tuple, and the order
+    /// below the gate is the trees' too.
+    pub fn refine_all(&mut self) {
+        self.gate = f64::NEG_INFINITY;
+    }
+
+    /// The ridge part (before the refractive-index shift) from which the trees refine a
+    /// tuple's score (−∞: every tuple), and what a tuple below it takes instead of their sum.
+    pub fn gate(&self) -> (f64, f64) {
+        (self.gate, self.tree_floor)
     }
 
     /// Evaluate the trees from the descriptors alone, without the per-entry rows computed at
@@ -478,7 +536,13 @@ impl BoundModel {
             } else {
                 0.0
             };
-            return (y[0] + quad + self.trees(x, s) + shift, unseen);
+            let ridge = y[0] + quad;
+            let trees = if ridge < self.gate {
+                self.tree_floor
+            } else {
+                self.trees(x, s)
+            };
+            return (ridge + trees + shift, unseen);
         }
         let (y, unseen) = self.raw::<3>(x, s, 0);
         let d = ((y[1] * std::f64::consts::LN_10).exp() - DEST_OFFSET_EV).max(0.0);

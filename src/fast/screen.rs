@@ -15,8 +15,10 @@
 //!
 //! A tuple's records are folded site by site (`Fold`: minima, the best path, the best
 //! dimer, the path count and Σ mixing²) and the folds kept, so a tuple that changes only its
-//! last arm (88 % of that enumeration) folds one record. Then nine aggregated descriptors,
-//! a few products, and the trees in two parts: the trees asking about a sum over the arms
+//! last arm (88 % of that enumeration) folds one record. Then nine aggregated descriptors
+//! and a few products give the ridge part. A tuple whose ridge part is below the model's
+//! gate ([`BoundModel::gate`]; 87 % of that enumeration) is done: it takes the least the
+//! trees can give. The others are refined by the trees, in two parts: the trees asking about a sum over the arms
 //! sit last in the mask (`SplitMasks::late_word`) and are summed for every tuple (two
 //! words of the mask); the others' leaves are fixed by a `MemoKey` (the best path and
 //! best dimer records, the lowest local S1 and four threshold counts), so their integer sum
@@ -236,6 +238,10 @@ struct Parts<'a> {
     /// Per class, the quadratic form among the aggregated product descriptors.
     agg_quad: [[[f64; 3]; 3]; 2],
     shift: f64,
+    /// The ridge part from which the trees refine a tuple, and what one below it takes
+    /// instead ([`BoundModel::gate`]).
+    gate: f64,
+    tree_floor: f64,
     trees: Option<TreeParts<'a>>,
     /// The neutral entry as the best dimer (no arm's dimer known).
     fallback: DimerPart,
@@ -362,6 +368,8 @@ struct Cache {
     memo: Memo,
     memo_hits: u64,
     memo_misses: u64,
+    /// Tuples whose trees were summed (their ridge part reached the gate).
+    refined: u64,
 }
 
 impl<'a> Screener<'a> {
@@ -384,6 +392,7 @@ impl<'a> Screener<'a> {
                 memo: Memo::default(),
                 memo_hits: 0,
                 memo_misses: 0,
+                refined: 0,
             },
         }
     }
@@ -403,6 +412,13 @@ impl<'a> Screener<'a> {
         (self.cache.memo_hits, self.cache.memo_misses)
     }
 
+    /// Tuples whose trees were summed: their ridge part reached the model's gate
+    /// ([`BoundModel::gate`]). None when tuples are scored through the descriptors, which
+    /// do not count them.
+    pub fn refined(&self) -> Option<u64> {
+        self.parts.is_some().then_some(self.cache.refined)
+    }
+
     /// The screen score of `t` and whether a fragment was outside the fit: the numbers of
     /// [`BoundModel::score`]. None when `t` has no donor–acceptor path.
     #[inline]
@@ -417,6 +433,7 @@ impl<'a> Screener<'a> {
             memo,
             memo_hits,
             memo_misses,
+            refined,
             ..
         } = &mut self.cache;
         let f = *folds.last()?;
@@ -468,86 +485,91 @@ impl<'a> Screener<'a> {
                 y += za[a] * row;
             }
         }
-        if let Some(tp) = &parts.trees {
-            let m = tp.masks;
-            let rows = m.rows();
-            let count = |a: usize| tp.counters[a].map_or(0, |c| c.below(xa[a]));
-            // Counts of thresholds below, in [`AGG`] order; the hinges' only when a late
-            // tree asks about them (otherwise when the early trees are summed).
-            let mut counts = [0usize; 9];
-            counts[AT_LN] = match tp.ln_counts.get(n_paths) {
-                Some(&c) => c,
-                None => count(AT_LN),
-            };
-            counts[AT_MSS] = count(AT_MSS);
-            counts[AT_GAP2] = count(AT_GAP2);
-            counts[AT_LOCAL_T1] = usize::from(local[1]);
-            counts[AT_LOCAL_S1] = usize::from(local[0]);
-            counts[AT_PAIR_T1] = usize::from(pair[1]);
-            counts[AT_PAIR_S1] = usize::from(pair[0]);
-            for a in [AT_H0, AT_H1] {
-                if tp.late_asks[a] {
-                    counts[a] = count(a);
+        match &parts.trees {
+            None => {}
+            Some(_) if y < parts.gate => y += parts.tree_floor,
+            Some(tp) => {
+                *refined += 1;
+                let m = tp.masks;
+                let rows = m.rows();
+                let count = |a: usize| tp.counters[a].map_or(0, |c| c.below(xa[a]));
+                // Counts of thresholds below, in [`AGG`] order; the hinges' only when a late
+                // tree asks about them (otherwise when the early trees are summed).
+                let mut counts = [0usize; 9];
+                counts[AT_LN] = match tp.ln_counts.get(n_paths) {
+                    Some(&c) => c,
+                    None => count(AT_LN),
+                };
+                counts[AT_MSS] = count(AT_MSS);
+                counts[AT_GAP2] = count(AT_GAP2);
+                counts[AT_LOCAL_T1] = usize::from(local[1]);
+                counts[AT_LOCAL_S1] = usize::from(local[0]);
+                counts[AT_PAIR_T1] = usize::from(pair[1]);
+                counts[AT_PAIR_S1] = usize::from(pair[0]);
+                for a in [AT_H0, AT_H1] {
+                    if tp.late_asks[a] {
+                        counts[a] = count(a);
+                    }
                 }
-            }
-            let row = |counts: &[usize; 9], a: usize| &rows[tp.first_row[a] + counts[a]];
-            let key = MemoKey {
-                records: u64::from(bi) << 32 | u64::from(di),
-                counts: (counts[AT_GAP2]
-                    | counts[AT_LOCAL_T1] << 16
-                    | counts[AT_PAIR_T1] << 32
-                    | counts[AT_PAIR_S1] << 48) as u64,
-                s1_bits: s1.to_bits(),
-            };
-            let early = match memo.get(&key) {
-                Some(&v) => {
-                    *memo_hits += 1;
-                    v
-                }
-                None => {
-                    *memo_misses += 1;
-                    let mut counts = counts;
-                    for a in [AT_H0, AT_H1] {
-                        if !tp.late_asks[a] {
-                            counts[a] = count(a);
+                let row = |counts: &[usize; 9], a: usize| &rows[tp.first_row[a] + counts[a]];
+                let key = MemoKey {
+                    records: u64::from(bi) << 32 | u64::from(di),
+                    counts: (counts[AT_GAP2]
+                        | counts[AT_LOCAL_T1] << 16
+                        | counts[AT_PAIR_T1] << 32
+                        | counts[AT_PAIR_S1] << 48) as u64,
+                    s1_bits: s1.to_bits(),
+                };
+                let early = match memo.get(&key) {
+                    Some(&v) => {
+                        *memo_hits += 1;
+                        v
+                    }
+                    None => {
+                        *memo_misses += 1;
+                        let mut counts = counts;
+                        for a in [AT_H0, AT_H1] {
+                            if !tp.late_asks[a] {
+                                counts[a] = count(a);
+                            }
                         }
+                        let early_rows = [
+                            &b.mask,
+                            &d.mask,
+                            row(&counts, AT_H0),
+                            row(&counts, AT_H1),
+                            row(&counts, AT_GAP2),
+                            row(&counts, AT_LOCAL_T1),
+                            row(&counts, AT_LOCAL_S1),
+                            row(&counts, AT_PAIR_T1),
+                            row(&counts, AT_PAIR_S1),
+                        ];
+                        let v = m.partial_sum(&early_rows, 0, tp.late_word);
+                        if memo.len() >= MEMO_CAP {
+                            memo.clear();
+                        }
+                        memo.insert(key, v);
+                        v
                     }
-                    let early_rows = [
-                        &b.mask,
-                        &d.mask,
-                        row(&counts, AT_H0),
-                        row(&counts, AT_H1),
-                        row(&counts, AT_GAP2),
-                        row(&counts, AT_LOCAL_T1),
-                        row(&counts, AT_LOCAL_S1),
-                        row(&counts, AT_PAIR_T1),
-                        row(&counts, AT_PAIR_S1),
-                    ];
-                    let v = m.partial_sum(&early_rows, 0, tp.late_word);
-                    if memo.len() >= MEMO_CAP {
-                        memo.clear();
-                    }
-                    memo.insert(key, v);
-                    v
-                }
-            };
-            // A descriptor no late tree asks about has count 0 here: its row at 0 has no
-            // splits, and its rows have none in the late words anyway.
-            let late_rows = [
-                &b.mask,
-                &d.mask,
-                row(&counts, 0),
-                row(&counts, 1),
-                row(&counts, 2),
-                row(&counts, 3),
-                row(&counts, 4),
-                row(&counts, 5),
-                row(&counts, 6),
-                row(&counts, 7),
-                row(&counts, 8),
-            ];
-            let late = m.partial_sum(&late_rows, tp.late_word, tp.words);
-            y += m.value_of(early.wrapping_add(late));
+                };
+                // A descriptor no late tree asks about has count 0 here: its row at 0 has no
+                // splits, and its rows have none in the late words anyway.
+                let late_rows = [
+                    &b.mask,
+                    &d.mask,
+                    row(&counts, 0),
+                    row(&counts, 1),
+                    row(&counts, 2),
+                    row(&counts, 3),
+                    row(&counts, 4),
+                    row(&counts, 5),
+                    row(&counts, 6),
+                    row(&counts, 7),
+                    row(&counts, 8),
+                ];
+                let late = m.partial_sum(&late_rows, tp.late_word, tp.words);
+                y += m.value_of(early.wrapping_add(late));
+            }
         }
         Some((y + parts.shift, b.unseen))
     }
@@ -753,7 +775,7 @@ impl<'a> Parts<'a> {
                     late_asks,
                 })
             }
-            None if model.forest().n_trees() == 0 && model.forest().tables().is_empty() => None,
+            None if model.forest().is_empty() => None,
             None => return None,
         };
         let mut agg_quad = [[[0.0; 3]; 3]; 2];
@@ -773,6 +795,8 @@ impl<'a> Parts<'a> {
             agg: std::array::from_fn(|c| AGG.map(|f| model.w[c][SCREEN][f])),
             agg_quad,
             shift,
+            gate: model.gate,
+            tree_floor: model.tree_floor,
             trees,
             fallback,
         };

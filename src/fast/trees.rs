@@ -793,6 +793,33 @@ impl Forest {
         }
     }
 
+    /// Whether the forest has no trees (its value is 0 everywhere).
+    pub fn is_empty(&self) -> bool {
+        self.tables.is_empty() && self.n_trees() == 0
+    }
+
+    /// A value the forest never falls below: each table's least cell and, per mask, the
+    /// least entry of each byte's table summed in the masks' integer units (bytes are not
+    /// independent, so the bound need not be reached).
+    pub fn lower_bound(&self) -> f64 {
+        self.tables
+            .iter()
+            .map(|t| {
+                t.cells
+                    .iter()
+                    .fold(f64::INFINITY, |m, &c| m.min(f64::from(c)))
+            })
+            .sum::<f64>()
+            + self
+                .masks
+                .iter()
+                .map(|m| {
+                    let least = m.pairs.iter().map(|t| t.iter().min().copied().unwrap_or(0));
+                    m.value_of(least.fold(0i32, i32::wrapping_add))
+                })
+                .sum::<f64>()
+    }
+
     /// Number of trees not tabulated (evaluated through the split masks).
     pub fn n_trees(&self) -> usize {
         self.masks.iter().map(|m| m.n_trees).sum()

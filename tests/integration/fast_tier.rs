@@ -51,6 +51,13 @@ fn the_shipped_fast_model_matches_its_held_out_record() {
         shipped.screen.floor
     );
     let refit = fit_model(&fit, &ids, shipped.fit.ridge_alpha, sf).expect("fit");
+    // The gate: the same quantile of the fitting rows' ridge part (chosen by
+    // cross-validation in the fit example).
+    assert_eq!(refit.screen.gate_quantile, shipped.screen.gate_quantile);
+    match (refit.screen.gate, shipped.screen.gate) {
+        (Some(a), Some(b)) => assert!((a - b).abs() < 1e-9, "gate {a} vs {b}: refit"),
+        (a, b) => assert_eq!(a, b, "gate: refit"),
+    }
     let close = |a: &[f64], b: &[f64]| {
         assert_eq!(a.len(), b.len());
         for (x, y) in a.iter().zip(b.iter()) {
@@ -361,24 +368,39 @@ pass_fraction = 0.05
     let screen = wf.screen.as_ref().expect("screen settings");
     let bound = FastModel::default_model().bind(set, screen.refractive_index, screen.temperature_k);
     let en = Enumerator::new(lib, &wf.enumerate.as_ref().unwrap().params).unwrap();
-    let mut all: Vec<(f64, usize, String)> = Vec::new();
-    let mut ord = 0;
-    en.for_each(|e| {
-        if let TupleEvent::Admitted(t) = e {
-            if let Some(fe) = bound.predict(set, &t) {
-                all.push((fe.score, ord, t.key(lib)));
+    // The best `passed` tuples by a model's score, and how many it refines (ridge part at or
+    // above its gate: every score at least its gate score).
+    let best = |bound: &lumisift::fast::BoundModel| {
+        let mut all: Vec<(f64, usize, String)> = Vec::new();
+        let mut ord = 0;
+        en.for_each(|e| {
+            if let TupleEvent::Admitted(t) = e {
+                if let Some(fe) = bound.predict(set, &t) {
+                    all.push((fe.score, ord, t.key(lib)));
+                }
+                ord += 1;
             }
-            ord += 1;
-        }
-        ControlFlow::Continue(())
-    });
-    all.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
-    let mut want: Vec<String> = all
-        .iter()
-        .take(sc.passed as usize)
-        .map(|x| x.2.clone())
-        .collect();
-    want.sort();
+            ControlFlow::Continue(())
+        });
+        all.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        let mut want: Vec<String> = all
+            .iter()
+            .take(sc.passed as usize)
+            .map(|x| x.2.clone())
+            .collect();
+        want.sort();
+        want
+    };
+    let want = best(&bound);
+    // The summary says where the trees' gate lies and how many scores they refined.
+    let gate_score = bound.gate_score().expect("the shipped model has a gate");
+    assert_eq!(sc.gate_score, Some(gate_score));
+    let refined = sc.refined.expect("counted on the screener's path");
+    assert!(
+        refined > 0 && refined < sc.scored,
+        "{refined} of {}",
+        sc.scored
+    );
     let stored = |p: &std::path::Path| -> Vec<String> {
         let c = rusqlite::Connection::open(p).unwrap();
         let mut st = c
@@ -396,6 +418,23 @@ pass_fraction = 0.05
     let wf2 = lumisift::campaign::Workflow::load(&path2).unwrap();
     lumisift::campaign::run(&wf2, &opts).unwrap();
     assert_eq!(stored(&wf2.store), want);
+    // With `refine_all` the trees refine every tuple: the best by the ungated score.
+    let path3 = dir.join("wf3.toml");
+    std::fs::write(
+        &path3,
+        wf_text.replace("store.sqlite", "store3.sqlite").replace(
+            "pass_fraction = 0.05\n",
+            "pass_fraction = 0.05\nrefine_all = true\n",
+        ),
+    )
+    .unwrap();
+    let wf3 = lumisift::campaign::Workflow::load(&path3).unwrap();
+    let s3 = lumisift::campaign::run(&wf3, &opts).unwrap();
+    let sc3 = s3.screen.expect("screen ran");
+    assert_eq!(sc3.gate_score, None);
+    let mut ungated = bound.clone();
+    ungated.refine_all();
+    assert_eq!(stored(&wf3.store), best(&ungated));
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -433,7 +472,17 @@ fn screen_settings_are_checked() {
     assert!(!wf.screen.expect("screen").trees);
     let wf =
         lumisift::campaign::Workflow::parse(p, &base("[\"screen\", \"enumerate\"]", "")).unwrap();
-    assert!(wf.screen.expect("screen").trees, "trees by default");
+    let sc = wf.screen.expect("screen");
+    assert!(
+        sc.trees && !sc.refine_all,
+        "trees behind their gate by default"
+    );
+    let wf = lumisift::campaign::Workflow::parse(
+        p,
+        &base("[\"screen\", \"enumerate\"]", "").replace("0.1\n", "0.1\nrefine_all = true\n"),
+    )
+    .unwrap();
+    assert!(wf.screen.expect("screen").refine_all);
 }
 
 /// The screen's fast path gives the full prediction's ordering key: at the score's own
@@ -488,6 +537,30 @@ fn the_fast_score_equals_the_full_prediction() {
     assert!(screener.uses_records() && screener_ridge.uses_records());
     assert!(!screener_warmer.uses_records() && !Screener::new(&counted, set).uses_records());
     let mut ridge_stream = Describer::new(set);
+    // The trees refine only tuples whose ridge part reaches the model's gate; the others
+    // score their ridge part plus the least the trees can give, so they rank below every
+    // refined tuple. `refine_all` lifts the gate: the same scores above it, never lower
+    // ones below it.
+    let (gate, tree_floor) = at_fit.gate();
+    let gate_score = at_fit.gate_score().expect("the shipped model has a gate");
+    assert!(gate.is_finite() && tree_floor < 0.0, "{gate} {tree_floor}");
+    let mut all = at_fit.clone();
+    all.refine_all();
+    assert_eq!(all.gate_score(), None);
+    // A screen keeps the gate while it passes no more than the share of the fitting rows
+    // the gate lets through (1 − its quantile), and lifts it beyond.
+    let q = model.screen.gate_quantile.expect("gate quantile");
+    let mut narrow = at_fit.clone();
+    assert!(narrow.gate_for_pass(1.0 - q - 0.01));
+    assert_eq!(narrow.gate_score(), Some(gate_score));
+    assert!(!narrow.gate_for_pass(1.0 - q + 0.01));
+    assert_eq!(narrow.gate_score(), None);
+    let mut screener_all = Screener::new(&all, set);
+    let mut all_stream = Describer::new(set);
+    // (refined, below the gate) among the tuples that are not a single D–A dimer, and the
+    // lowest refined and highest unrefined scores.
+    let (mut refined, mut below) = (0u64, 0u64);
+    let (mut lowest_refined, mut highest_below) = (f64::INFINITY, f64::NEG_INFINITY);
     // A model without the products (its own scores, not the shipped ones) is scored alike by
     // the screener and the descriptor path.
     let mut plain_model = model.clone();
@@ -547,12 +620,29 @@ fn the_fast_score_equals_the_full_prediction() {
                 "{t:?}"
             );
             same(screener.score(&t), streamed, &t);
-            treed += usize::from(fresh.is_some_and(|s| s.class != TupleClass::Dimer));
-            same(
-                screener_ridge.score(&t),
-                ridge.score_stream(&mut ridge_stream, &t),
-                &t,
-            );
+            let ridged = ridge.score_stream(&mut ridge_stream, &t);
+            same(screener_ridge.score(&t), ridged, &t);
+            let ungated = all.score_stream(&mut all_stream, &t);
+            same(screener_all.score(&t), ungated, &t);
+            if let (Some(s), Some((r, _)), Some((v, _)), Some((u, _))) =
+                (fresh, ridged, streamed, ungated)
+                && s.class != TupleClass::Dimer
+            {
+                treed += 1;
+                if r >= gate {
+                    refined += 1;
+                    lowest_refined = lowest_refined.min(v);
+                    assert_eq!(v.to_bits(), u.to_bits(), "{t:?}");
+                } else {
+                    below += 1;
+                    highest_below = highest_below.max(v);
+                    assert!(
+                        (v - (r + tree_floor)).abs() <= 1e-9 * v.abs().max(1.0),
+                        "{t:?}"
+                    );
+                    assert!(u >= v, "{u} < {v}: {t:?}");
+                }
+            }
             if n % 3 == 0 {
                 same(screener_skipping.score(&t), streamed, &t);
             }
@@ -597,8 +687,18 @@ fn the_fast_score_equals_the_full_prediction() {
     // Every tuple that reaches the trees either finds its early trees' sum or makes it, and
     // both happen (the memo is exercised, not bypassed; this enumeration's short runs of a
     // core find few).
+    assert!(
+        refined > 100 && below > 100,
+        "{refined} refined, {below} below the gate"
+    );
+    assert!(
+        lowest_refined >= gate_score && highest_below < gate_score,
+        "{lowest_refined} {highest_below} {gate_score}"
+    );
+    assert_eq!(screener.refined(), Some(refined));
+    assert_eq!(screener_all.refined(), Some(treed as u64));
     let (hits, misses) = screener.memo_counts();
-    assert_eq!(hits + misses, treed as u64);
+    assert_eq!(hits + misses, refined);
     assert!(hits > 0 && misses > 0, "{hits} found, {misses} summed");
     // Records are made once per (site, arm) per run of a core and side: none made twice in a
     // run, none shared by two arms.
