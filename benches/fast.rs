@@ -5,7 +5,8 @@
 //! against): `cargo bench --bench fast`. Instruction counts of the same loops:
 //! `examples/fast_tier_profile.rs`.
 //! Target (issue 5): ≥ 10^7 tuples/s per core, no allocation per tuple. Measured with the
-//! screen score's boosted trees (the default) and without (`[screen] trees = false`).
+//! screen score's boosted trees behind their gate (the default), with the trees refining
+//! every tuple (`[screen] refine_all = true`) and without them (`[screen] trees = false`).
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 
@@ -21,10 +22,16 @@ fn bench(c: &mut Criterion) {
     let bound = FastModel::default_model().bind(&set, 1.7, 300.0);
     let mut ridge_only = bound.clone();
     ridge_only.drop_trees();
+    let mut ungated = bound.clone();
+    ungated.refine_all();
     let tuples = fast_tuples::tuples(&lib, fast_tuples::Sample::Blocks);
     let mut g = c.benchmark_group("fast tier");
     g.throughput(Throughput::Elements(tuples.len() as u64));
-    for (name, model) in [("score", &bound), ("score without trees", &ridge_only)] {
+    for (name, model) in [
+        ("score", &bound),
+        ("score, every tuple refined", &ungated),
+        ("score without trees", &ridge_only),
+    ] {
         g.bench_function(format!("{name}, {} tuples", tuples.len()), |b| {
             b.iter(|| {
                 let mut s = 0.0;
