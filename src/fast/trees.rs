@@ -799,8 +799,8 @@ impl Forest {
     }
 
     /// A value the forest never falls below: each table's least cell and, per mask, the
-    /// least entry of each byte's table summed in the masks' integer units (bytes are not
-    /// independent, so the bound need not be reached).
+    /// least entry of each byte's table summed in the masks' integer units: the trees' least
+    /// leaves summed, which trees asking about the same descriptors need not reach together.
     pub fn lower_bound(&self) -> f64 {
         self.tables
             .iter()
@@ -898,9 +898,19 @@ mod tests {
             }
         }
         points.push(vec![f64::NAN; 5]);
+        // The lower bound (the screen score's gate gives it to tuples below the gate) holds
+        // at every point, tables and masks together, and is no slacker than the trees' least
+        // leaves summed (a table's least cell is its group's least sum).
+        let lb = forest.lower_bound();
+        let least: f64 = trees
+            .iter()
+            .map(|t| t.leaves.iter().fold(f64::INFINITY, |m, &v| m.min(v)))
+            .sum();
+        assert!(lb >= least - 1e-6, "{lb} vs {least}");
         for x in &points {
             let (a, b) = (forest.value(x), predict(&trees, x));
             assert!((a - b).abs() < 1e-6, "{a} vs {b} at {x:?}");
+            assert!(a >= lb, "{a} below the bound {lb} at {x:?}");
         }
         // A group too large for a table is evaluated tree by tree, to the same sum.
         let wide = boost(
@@ -970,9 +980,19 @@ mod tests {
             .map(|_| (0..5).map(|_| next() * 1.2 - 0.1).collect())
             .collect();
         points.push(vec![f64::NAN; 5]);
+        // Split masks alone: the bound is the trees' least leaves summed (two trees a byte,
+        // indexed independently), up to the integer units' rounding.
+        let lb = forest.lower_bound();
+        let least: f64 = trees
+            .iter()
+            .map(|t| t.leaves.iter().fold(f64::INFINITY, |m, &v| m.min(v)))
+            .sum();
+        assert!((lb - least).abs() < 1e-6, "{lb} vs {least}");
+        assert_eq!(Forest::default().lower_bound(), 0.0);
         for x in &points {
             let (a, b) = (forest.value(x), predict(&trees, x));
             assert!((a - b).abs() < 1e-6, "{a} vs {b} at {x:?}");
+            assert!(a >= lb, "{a} below the bound {lb} at {x:?}");
             let mut mask = [0u64; MASK_WORDS];
             for (k, (f, _, _)) in m.features.iter().enumerate() {
                 or_into(&mut mask, m.row(k, x[*f]));
