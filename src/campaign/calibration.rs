@@ -1,7 +1,7 @@
 //! Calibration and next-batch suggestion on a campaign store: gathers the matched imported
 //! results and the π-tier estimates, fits [`crate::calibrate`] per kind, stores the fit and
 //! applies it to every estimated candidate (stage `calibrated`, raw and calibrated side by
-//! side); picks the next batch to compute ([`crate::calibrate::suggest`]).
+//! side); picks the next batch to compute ([`crate::calibrate::suggest()`]).
 //!
 //! Observed values per (candidate, kind), from `qc_states` rows matched to the candidate:
 //! - state kinds (vertical absorption/emission, adiabatic, 0–0, measured peaks and onsets):

@@ -19,7 +19,7 @@ use serde::{Deserialize, Serialize};
 pub const DEPTH: usize = 4;
 const LEAVES: usize = 1 << DEPTH;
 
-/// One oblivious tree: the leaf index is Σ_k [x[features[k]] > thresholds[k]]·2^k.
+/// One oblivious tree: the leaf index is `Σ_k [x[features[k]] > thresholds[k]]·2^k`.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Tree {

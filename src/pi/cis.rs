@@ -84,7 +84,7 @@ pub struct CisResult {
 }
 
 /// Solve CIS for singlets and triplets in the active space: full diagonalisation of the CI
-/// matrix up to [`DAVIDSON_MIN_DIM`] configurations, above it Davidson iteration on a direct
+/// matrix up to `DAVIDSON_MIN_DIM` configurations, above it Davidson iteration on a direct
 /// σ-vector built from γ (no CI matrix, O(n³) per vector).
 pub fn cis(model: &PppModel, scf: &ScfResult, params: &CisParams) -> CisResult {
     let n = model.n_sites();
@@ -346,7 +346,7 @@ pub const DAVIDSON_MIN_DIM: usize = 60;
 const DAVIDSON_TOL: f64 = 1e-4;
 
 /// The `k` lowest eigenpairs of the symmetric matrix `a`, ascending: full diagonalisation for
-/// small matrices, otherwise [`davidson`] on the dense matrix (falls back to the full
+/// small matrices, otherwise `davidson` on the dense matrix (falls back to the full
 /// diagonalisation if it does not converge). Sign convention of the vectors: largest-magnitude
 /// component positive.
 pub fn lowest_eigenpairs(a: DMatrix<f64>, k: usize) -> (DVector<f64>, DMatrix<f64>) {

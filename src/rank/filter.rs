@@ -1,7 +1,7 @@
 //! Hard filters with reason codes.
 //!
 //! Each filter yields the probability P_i that the row passes it under the row's
-//! [`Uncertain`](super::Uncertain) distributions (0 or 1 for exact values); the row's
+//! [`Uncertain`] distributions (0 or 1 for exact values); the row's
 //! probability is P = Π P_i (filters taken as independent). The row is kept when P ≥ `p_min`.
 //! A rejected row lists every filter with P_i < `p_min`, and `joint_probability_below_threshold`
 //! when each filter passes alone but the product does not. A filter that needs a value the row
