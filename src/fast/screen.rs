@@ -18,12 +18,12 @@
 //! last arm (88 % of that enumeration) folds one record. Then nine aggregated descriptors
 //! and a few products give the ridge part. A tuple whose ridge part is below the model's
 //! gate ([`BoundModel::gate`]; 87 % of that enumeration) is done: it takes the least the
-//! trees can give. The others are refined by the trees, in two parts: the trees asking about a sum over the arms
-//! sit last in the mask (`SplitMasks::late_word`) and are summed for every tuple (two
-//! words of the mask); the others' leaves are fixed by a `MemoKey` (the best path and
-//! best dimer records, the lowest local S1 and four threshold counts), so their integer sum
-//! is kept per key for the run of the core (88 % of that enumeration's tuples find it; an
-//! enumeration of short runs finds few).
+//! trees can give. The others are refined by the trees, in two parts: the trees asking
+//! about a sum over the arms sit last in the mask (`SplitMasks::late_word`) and are summed
+//! for every refined tuple (two words of the mask); the others' leaves are fixed by a
+//! `MemoKey` (the best path and best dimer records, the lowest local S1 and four threshold
+//! counts), so their integer sum is kept per key for the run of the core (89 % of that
+//! enumeration's refined tuples find it; an enumeration of short runs finds few).
 //!
 //! The result is the score of [`BoundModel::score_stream`] up to the order of floating-point
 //! additions (the same descriptors, the same trees' mask, so the same leaves; tested over
