@@ -252,14 +252,15 @@ fn main() {
     );
     let ev = evaluate(&test, &bound);
     println!("fit {} / test {}", fit.len(), test.len());
+    // The ridge part alone: which held-out tuples reach the gate, and how it screens.
     let (gate, _) = bound.gate();
-    let mut ridge_part = bound.clone();
-    ridge_part.drop_trees();
+    let mut ridge_only = bound.clone();
+    ridge_only.drop_trees();
     let refined = test
         .iter()
         .filter(|s| {
             s.summary.class != lumisift::fast::TupleClass::Dimer
-                && ridge_part.score_descriptors(&s.x, &s.summary).0 >= gate
+                && ridge_only.score_descriptors(&s.x, &s.summary).0 >= gate
         })
         .count();
     println!(
@@ -269,8 +270,6 @@ fn main() {
         test.len()
     );
     println!("{ev:#?}");
-    let mut ridge_only = bound.clone();
-    ridge_only.drop_trees();
     let coarse = evaluate(&test, &ridge_only);
     println!(
         "without the trees: top 100 kept at 10 % {:.2}, pass fraction for 95 % {:.2}",

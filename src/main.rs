@@ -525,7 +525,7 @@ fn run(
                         }
                     ),
                     (true, Some(r), None) => eprintln!(
-                        "screen: the boosted trees refined every score ({r}; no gate: refine_all, or a pass fraction above the share the model's gate refines)"
+                        "screen: the boosted trees refined every score ({r}; no gate in use: the model has none, [screen] refine_all is set, or the pass fraction is above the share its gate refines)"
                     ),
                     _ => {}
                 }

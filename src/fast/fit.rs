@@ -165,18 +165,13 @@ pub fn screen_fit(
     temperature_k: f64,
 ) -> ScreenFit {
     let floor_quantile = settings.floor_quantile;
-    let mut m: Vec<f64> = samples
-        .iter()
-        .map(|s| s.merit(refractive_index, temperature_k))
-        .filter(|v| v.is_finite())
-        .collect();
-    m.sort_by(f64::total_cmp);
-    let floor = if m.is_empty() {
-        f64::NEG_INFINITY
-    } else {
-        let k = ((m.len() - 1) as f64 * floor_quantile.clamp(0.0, 1.0)).round() as usize;
-        m[k]
-    };
+    let floor = quantile(
+        samples
+            .iter()
+            .map(|s| s.merit(refractive_index, temperature_k)),
+        floor_quantile,
+    )
+    .unwrap_or(f64::NEG_INFINITY);
     ScreenFit {
         floor_quantile,
         floor,
@@ -189,6 +184,16 @@ pub fn screen_fit(
         // Set by the fit from its ridge part.
         gate: None,
     }
+}
+
+/// The `q` quantile of the finite `values`: the value at rank round((n − 1)·q) of the sorted
+/// ones (no interpolation, so it is one of the values); None without a finite value. The rule
+/// of the screen score's floor and of its trees' gate.
+fn quantile(values: impl Iterator<Item = f64>, q: f64) -> Option<f64> {
+    let mut v: Vec<f64> = values.filter(|v| v.is_finite()).collect();
+    v.sort_by(f64::total_cmp);
+    let k = (v.len().checked_sub(1)? as f64 * q.clamp(0.0, 1.0)).round() as usize;
+    Some(v[k])
 }
 
 /// Cross-validated choice of the screen score's settings: for each [`ScreenSettings`] of
@@ -382,12 +387,9 @@ pub fn fit_model(
         .collect();
     // The gate: the ridge part's quantile over the fitting rows (the floor's rule).
     let mut screen = screen;
-    screen.gate = screen.gate_quantile.and_then(|q| {
-        let mut v: Vec<f64> = init.iter().copied().filter(|v| v.is_finite()).collect();
-        v.sort_by(f64::total_cmp);
-        let k = ((v.len().checked_sub(1)?) as f64 * q.clamp(0.0, 1.0)).round() as usize;
-        Some(v[k])
-    });
+    screen.gate = screen
+        .gate_quantile
+        .and_then(|q| quantile(init.iter().copied(), q));
     let xs: Vec<&[f64]> = samples.iter().map(|s| s.x.as_slice()).collect();
     let groups: Vec<Vec<usize>> = if screen.tree_groups.is_empty() {
         vec![(1..super::N_FEATURES).collect()]

@@ -238,10 +238,6 @@ struct Parts<'a> {
     /// Per class, the quadratic form among the aggregated product descriptors.
     agg_quad: [[[f64; 3]; 3]; 2],
     shift: f64,
-    /// The ridge part from which the trees refine a tuple, and what one below it takes
-    /// instead ([`BoundModel::gate`]).
-    gate: f64,
-    tree_floor: f64,
     trees: Option<TreeParts<'a>>,
     /// The neutral entry as the best dimer (no arm's dimer known).
     fallback: DimerPart,
@@ -487,7 +483,7 @@ impl<'a> Screener<'a> {
         }
         match &parts.trees {
             None => {}
-            Some(_) if y < parts.gate => y += parts.tree_floor,
+            Some(_) if y < self.model.gate => y += self.model.tree_floor,
             Some(tp) => {
                 *refined += 1;
                 let m = tp.masks;
@@ -795,8 +791,6 @@ impl<'a> Parts<'a> {
             agg: std::array::from_fn(|c| AGG.map(|f| model.w[c][SCREEN][f])),
             agg_quad,
             shift,
-            gate: model.gate,
-            tree_floor: model.tree_floor,
             trees,
             fallback,
         };

@@ -841,6 +841,14 @@ mod splitmix;
 mod tests {
     use super::*;
 
+    /// The trees' least leaves summed: what a forest of independent trees could fall to.
+    fn least_leaves(trees: &[Tree]) -> f64 {
+        trees
+            .iter()
+            .map(|t| t.leaves.iter().fold(f64::INFINITY, |m, &v| m.min(v)))
+            .sum()
+    }
+
     /// 400 rows of five seeded uniform descriptors, their targets by `f`, and the generator
     /// to draw more from.
     fn seeded(
@@ -901,11 +909,7 @@ mod tests {
         // The lower bound (the screen score's gate gives it to tuples below the gate) holds
         // at every point, tables and masks together, and is no slacker than the trees' least
         // leaves summed (a table's least cell is its group's least sum).
-        let lb = forest.lower_bound();
-        let least: f64 = trees
-            .iter()
-            .map(|t| t.leaves.iter().fold(f64::INFINITY, |m, &v| m.min(v)))
-            .sum();
+        let (lb, least) = (forest.lower_bound(), least_leaves(&trees));
         assert!(lb >= least - 1e-6, "{lb} vs {least}");
         for x in &points {
             let (a, b) = (forest.value(x), predict(&trees, x));
@@ -982,11 +986,7 @@ mod tests {
         points.push(vec![f64::NAN; 5]);
         // Split masks alone: the bound is the trees' least leaves summed (two trees a byte,
         // indexed independently), up to the integer units' rounding.
-        let lb = forest.lower_bound();
-        let least: f64 = trees
-            .iter()
-            .map(|t| t.leaves.iter().fold(f64::INFINITY, |m, &v| m.min(v)))
-            .sum();
+        let (lb, least) = (forest.lower_bound(), least_leaves(&trees));
         assert!((lb - least).abs() < 1e-6, "{lb} vs {least}");
         assert_eq!(Forest::default().lower_bound(), 0.0);
         for x in &points {
